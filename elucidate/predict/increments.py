@@ -147,8 +147,14 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
     unc = 0.15
     terms: list[tuple[float, str]] = []
 
-    # Shoolery's rule: CH2 with exactly two substituents, both functional groups
-    if nh == 2 and len(alpha) == 2 and len(func) == 2:
+    # Shoolery's rule: CH2 with exactly two substituents, both functional groups;
+    # its extension to a methine CHXYZ with two or more functional groups
+    # (handbook practice, less accurate: larger uncertainty)
+    methine = nh == 1 and len(alpha) == 3 and len(func) >= 2
+    if nh == 2 and len(alpha) == 2 and len(func) == 2 or methine:
+        if methine:
+            unc += 0.25
+            func = alpha
         sh = base["shoolery_constant"]["value"]
         terms.append((sh, "Shoolery constant"))
         ok = True
@@ -164,10 +170,12 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
         if ok:
             total = sum(v for v, _ in terms)
             deriv = [f"{terms[0][0]:.2f} {terms[0][1]}"] + [f"{_fmt(v)} {t}" for v, t in terms[1:]]
-            deriv.append(f"= {total:.2f} (Shoolery's rule, δ = 0.23 + σA + σB)")
+            rule = "Shoolery's rule extended to CHXYZ, δ = 0.23 + Σσ" if methine else "Shoolery's rule, δ = 0.23 + σA + σB"
+            deriv.append(f"= {total:.2f} ({rule})")
             return Shift(total, unc + 0.05, tuple(deriv + notes), label, "sp3")
         terms.clear()
         notes.clear()
+        func = [(x, k) for x, k in alpha if k != "R"]
 
     bkey = {3: "sp3_CH3", 2: "sp3_CH2", 1: "sp3_CH"}.get(nh, "sp3_CH3")
     b = base[bkey]["value"]

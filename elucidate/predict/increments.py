@@ -197,13 +197,18 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
         unc += 0.1 * (len(func) - 1)
         notes.append("note: several α groups; additivity is less reliable")
 
-    # β and γ through sp3 carbons
+    # β and γ through sp3 carbons; in rings a group is counted once, at its
+    # nearest position (the O of an epoxide is α, not also β)
+    counted = set(g.nbrs[c])
+    counted.add(c)
+    beta_atoms = {y for x, k in alpha if k == "R" and g.is_sp3_carbon(x) for y in g.nbrs[x]}
     for x, k in alpha:
         if k != "R" or not g.is_sp3_carbon(x):
             continue
         for y in g.nbrs[x]:
-            if y == c:
+            if y in counted:
                 continue
+            counted.add(y)
             ky = key(x, y)
             if ky != "R":
                 row, used, fell = lookup(table, ky)
@@ -213,20 +218,23 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
             if not g.is_sp3_carbon(y):
                 continue
             for z in g.nbrs[y]:
-                if z == x or z == c:
+                if z in counted or z in beta_atoms:
                     continue
+                counted.add(z)
                 kz = key(y, z)
                 if kz != "R":
                     row, used, fell = lookup(table, kz)
                     if row is not None and row["gamma"]:
                         terms.append((row["gamma"], f"γ-{NAMES.get(used, used)}"))
 
-    # carbocyclic ring correction (no functional group on this carbon)
-    if not func and g.atom_rings[c]:
-        size = min(len(g.rings[r]) for r in g.atom_rings[c])
-        ring = tables.sp3_ring_h().get(size)
-        if ring is not None and all(g.el[a] == "C" for a in g.rings[min(g.atom_rings[c], key=lambda r: len(g.rings[r]))]):
-            terms.append((ring["correction"], f"{size}-ring"))
+    # ring-size correction (from the parent cycloalkanes) for H on a carbon of
+    # a saturated ring (all ring bonds single), added like any other increment
+    if g.atom_rings[c]:
+        r = min(g.atom_rings[c], key=lambda r: len(g.rings[r]))
+        ring = g.rings[r]
+        row = tables.sp3_ring_h().get(len(ring))
+        if row is not None and all(g.order[a].get(b) == 1 for a, b in zip(ring, ring[1:] + ring[:1])):
+            terms.append((row["correction"], f"{len(ring)}-ring"))
 
     total = sum(v for v, _ in terms)
     deriv = [f"{terms[0][0]:.2f} {terms[0][1]}"] + [f"{_fmt(v)} {t}" for v, t in terms[1:]]

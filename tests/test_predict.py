@@ -215,7 +215,12 @@ def test_terminal_alkene_splits_into_two_environments() -> None:
     ("CC(=O)OC", 0, "s", "isolated CH3 singlet (n+1 rule)"),
     ("C#CCCC", 0, "t", "terminal alkyne H: t from the propargylic CH2, J ~2.6 (from memory)"),
     ("C=Cc1ccccc1", 1, "dd", "styrene =CH: dd (trans + cis) (common practice)"),
-    ("C/C=C/C(=O)OC", 2, "d", "methyl crotonate α-H: d, J ~16 (common practice)"),
+    ("C/C=C/C(=O)OC", 2, "dq", "methyl crotonate α-H: dq, J ~16, 1.7 (allylic) (from memory)"),
+    ("C/C=C/C(=O)OC", 0, "dd", "methyl crotonate CH3: dd, J ~7, 1.7 (from memory)"),
+    ("OCC=C", 1, "dt", "allyl alcohol OCH2: dt, J ~5, 1.5 (from memory)"),
+    ("CNC(C)=O", 0, "d", "N-methylacetamide N-CH3: d, J ~4.8 from NH (from memory)"),
+    ("O=C1CCCCC1", 3, "m", "cyclohexanone ring CH2: m (common practice)"),
+    ("CC(=C)C(=O)OC", 2, "s", "methyl methacrylate =CH2: s (geminal/allylic not resolved) (from memory)"),
     ("C/C=C/C(=O)OC", 1, "dq", "methyl crotonate β-H: dq (common practice)"),
     ("Cc1ccc(Cl)cc1", 2, "d", "para-disubstituted ring: two doublets (common practice)"),
     ("Cc1ccc(Cl)cc1", 3, "d", "para-disubstituted ring: two doublets (common practice)"),
@@ -228,18 +233,18 @@ def test_terminal_alkene_splits_into_two_environments() -> None:
     ("CCCCCC", 2, "m", "hexane inner CH2: overlapping, not first order (common practice)"),
 ])
 def test_multiplicity(smiles: str, atom: int, mult: str, source: str) -> None:
-    e = one_env(predict(smiles), atom) if len(env_at(predict(smiles), atom)) == 1 else None
-    assert e is not None and e.multiplicity == mult, source
+    envs = env_at(predict(smiles), atom)
+    assert envs and all(e.multiplicity == mult for e in envs), (source, [e.multiplicity for e in envs])
 
 
 def test_coupling_constants_by_kind() -> None:
     # typical J: vicinal sp3 ~7, trans alkene ~16, cis ~10, ortho aromatic ~8
     # (handbook knowledge, common practice; couplings.csv)
     p = predict("C/C=C/C(=O)OC")
-    (c,) = [c for c in one_env(p, 2).couplings]
+    (c,) = [c for c in one_env(p, 2).couplings if c.kind.startswith("alkene")]
     assert c.kind == "alkene trans" and c.j_hz == 16.0
     p = predict("C/C=C\\C(=O)OC")
-    (c,) = [c for c in one_env(p, 2).couplings]
+    (c,) = [c for c in one_env(p, 2).couplings if c.kind.startswith("alkene")]
     assert c.kind == "alkene cis" and c.j_hz == 10.0
     (c,) = one_env(predict("CCBr"), 0).couplings
     assert c.kind == "vicinal sp3" and c.j_hz == 7.0

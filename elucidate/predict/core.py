@@ -41,6 +41,11 @@ SOLVENTS: dict[str, str] = {
     "cd2cl2": "CD2Cl2", "dichloromethane-d2": "CD2Cl2",
 }
 
+#: Δν/J below which a non-aromatic pattern is reported as m (first-order
+#: spectra need Δν well above J; ratios of 6–10 are quoted — common practice,
+#: from memory).  Aromatic rings are read first order down to Δν/J = 1.
+FIRST_ORDER_MIN_RATIO = 6.0
+
 #: Solvents whose deuterium exchanges with OH/NH/SH.
 _EXCHANGING = {"CD3OD", "D2O"}
 
@@ -154,6 +159,15 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
         shifts.append(_shift(g, mol, s, kind, solvent, subs, ring_cache))
 
     coupl = partners(g, site_list, env_of)
+    dia_env: list[bool] = []
+    for ks in members:
+        s, kind = site_list[ks[0]]
+        dia = False
+        if kind == "sp3" and g.hs[s.atom] == 2:
+            if centres is None:
+                centres = stereocentres(mol)
+            dia = diastereotopic(g, rk, s.atom, centres)
+        dia_env.append(dia)
     fld = field or DEFAULT_FIELD_MHZ
     jtab = tables.couplings()
     envs: list[Environment] = []
@@ -172,22 +186,30 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
         deriv = list(sh.derivation)
         for c in cps:
             dnu = abs(shifts[c.environment].shift - sh.shift) * fld
-            if dnu < c.j_hz:
+            arom = kind == "aromatic" and site_list[members[c.environment][0]][1] == "aromatic"
+            limit = 1.0 if arom else FIRST_ORDER_MIN_RATIO
+            if c.j_hz >= 3.0 and dnu < limit * c.j_hz:
                 second = True
                 deriv.append(f"note: Δν/J = {dnu / c.j_hz:.1f} to environment {c.environment} "
                              f"at {fld:g} MHz: not first order, reported as m")
                 break
+        if not second and dia_env[e] and cps:
+            second = True
+            deriv.append("note: diastereotopic CH2 with neighbours: reported as m")
+        elif not second and g.hs[s.atom] < 3 and any(dia_env[c.environment] for c in cps):
+            second = True
+            deriv.append("note: coupled to a diastereotopic CH2: reported as m")
+        elif not second and kind in ("sp3", "alkene") and _ring6_vicinal(g, s.atom, cps, members, site_list):
+            second = True
+            deriv.append("note: ring H coupled to ring H (six-membered or larger ring): "
+                         "conformers make the pattern complex, reported as m (common practice)")
         mult = "s" if sh.exchangeable else pattern([(c.h_count, c.j_hz) for c in cps], second)
         if sh.exchangeable and solvent in _EXCHANGING:
             deriv.append(f"note: exchanges with {solvent}; usually not observed")
         atoms = tuple(sorted({site_list[k][0].atom for k in ks}))
-        dia = False
-        if kind == "sp3" and g.hs[s.atom] == 2:
-            if centres is None:
-                centres = stereocentres(mol)
-            dia = diastereotopic(g, rk, s.atom, centres)
-            if dia:
-                deriv.append("note: diastereotopic CH2; the two H may give separate signals")
+        dia = dia_env[e]
+        if dia:
+            deriv.append("note: diastereotopic CH2; the two H may give separate signals")
         envs.append(Environment(
             index=e,
             atoms=atoms,
@@ -204,6 +226,23 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
         ))
     carbons = carbon_shifts(g, mol, rk, subs, ring_cache)
     return Prediction(smiles=smiles, environments=tuple(envs), carbons=carbons, warnings=warnings)
+
+
+def _ring6_vicinal(g: Any, atom: int, cps: tuple[Coupling, ...], members: list[list[int]],
+                   site_list: list[Any]) -> bool:
+    """True if H on ring atom ``atom`` (ring of 6 or more) couples vicinally
+    to H on another atom of the same ring."""
+    rings = [g.rings[r] for r in g.atom_rings[atom] if len(g.rings[r]) >= 6]
+    if not rings:
+        return False
+    for c in cps:
+        if not c.kind.startswith("vicinal"):
+            continue
+        for k in members[c.environment]:
+            other = site_list[k][0].atom
+            if other in g.nbrs[atom] and any(other in r for r in rings):
+                return True
+    return False
 
 
 def _shift(g: Any, mol: Any, s: Any, kind: str, solvent: str | None,

@@ -50,26 +50,29 @@ def _alkene_relation(g: MolGraph, s: Site, t: Site) -> str:
 
 
 def partners(g: MolGraph, site_list: list[tuple[Site, str]], env_of: list[int]) -> list[list[tuple[int, int, str]]]:
-    """Coupling partners of every site: lists of (partner site index, h, kind)."""
+    """Coupling partners of every site: lists of (partner site index, h, kind).
+
+    Small couplings are kept only where chemists usually resolve them: the
+    geminal =CH2 and allylic (H–C=C–C–H) couplings on an alkene H that also
+    has a large vicinal coupling, the allylic coupling on an sp3 H that has
+    no other sp3 neighbour H (allyl ethers, crotonate CH3), the meta coupling
+    to or from an isolated aromatic H.
+    """
     by_atom: dict[int, list[int]] = {}
     for k, (s, _) in enumerate(site_list):
         by_atom.setdefault(s.atom, []).append(k)
     kinds = [kind for _, kind in site_list]
     out: list[list[tuple[int, int, str]]] = [[] for _ in site_list]
+    jtab = tables.couplings()
 
     def ortho_count(a: int) -> int:
         return sum(1 for b in g.nbrs[a] if g.arom[b] and b in by_atom and kinds[by_atom[b][0]] == "aromatic"
                    and g.order[a].get(b) == 4)
 
-    for k, (s, kind) in enumerate(site_list):
-        if kind == "XH":
-            continue
+    def vicinal(k: int) -> list[tuple[int, int, str]]:
+        s, kind = site_list[k]
         a = s.atom
         found: list[tuple[int, int, str]] = []
-        # geminal partners on the same atom (split =CH2)
-        for k2 in by_atom[a]:
-            if k2 != k and env_of[k2] != env_of[k]:
-                found.append((k2, site_list[k2][0].h_count, "alkene geminal"))
         for b in g.nbrs[a]:
             for k2 in by_atom.get(b, ()):
                 t, kind2 = site_list[k2]
@@ -87,6 +90,46 @@ def partners(g: MolGraph, site_list: list[tuple[Site, str]], env_of: list[int]) 
                     found.append((k2, t.h_count, "vicinal sp3"))
                 elif kind in ("sp3", "alkene", "allene", "imine") and kind2 in ("sp3", "alkene", "allene", "imine"):
                     found.append((k2, t.h_count, "vicinal sp3-sp2"))
+        return found
+
+    def allylic_alkene_sites(a: int) -> list[int]:
+        """Alkene H sites four bonds from the H on sp3 atom ``a``."""
+        res = []
+        for b in g.nbrs[a]:
+            d = g.double_partner(b)
+            if d < 0 or g.el[b] != "C" or g.el[d] != "C" or g.arom[b]:
+                continue
+            res += [k2 for k2 in by_atom.get(d, ()) if kinds[k2] == "alkene"]
+        return res
+
+    vic = [vicinal(k) if kind != "XH" else [] for k, (_, kind) in enumerate(site_list)]
+    large = [any(jtab[c[2]]["j_hz"] >= 5.0 for c in v) for v in vic]
+    for k, (s, kind) in enumerate(site_list):
+        if kind == "XH":
+            continue
+        a = s.atom
+        found = list(vic[k])
+        if kind == "alkene" and large[k]:
+            # geminal partner on the same atom (split =CH2)
+            for k2 in by_atom[a]:
+                if k2 != k and env_of[k2] != env_of[k]:
+                    found.append((k2, site_list[k2][0].h_count, "alkene geminal"))
+            # allylic H on sp3 carbons of the other alkene carbon
+            for y in g.nbrs[s.partner] if s.partner >= 0 else ():
+                if y != a and g.is_sp3_carbon(y):
+                    for k2 in by_atom.get(y, ()):
+                        if kinds[k2] == "sp3":
+                            found.append((k2, site_list[k2][0].h_count, "allylic"))
+        if kind == "sp3" and not any(c[2] == "vicinal sp3" for c in found):
+            for k2 in allylic_alkene_sites(a):
+                if large[k2]:
+                    found.append((k2, site_list[k2][0].h_count, "allylic"))
+        if kind == "sp3":
+            # amide N–H couples to H on the N-carbon (resolved in CDCl3)
+            for b in g.nbrs[a]:
+                if g.el[b] == "N" and g.hs[b] and not g.arom[b] and any(g.is_carbonyl_carbon(y) for y in g.nbrs[b]):
+                    for k2 in by_atom.get(b, ()):
+                        found.append((k2, site_list[k2][0].h_count, "amide NH-CH"))
         if kind == "aromatic":
             system = g.aro_system.get(a, frozenset())
             for b in g.nbrs[a]:

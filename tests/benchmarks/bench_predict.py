@@ -15,9 +15,11 @@ Run from the repository root::
 from __future__ import annotations
 
 import csv
+import re
 import statistics
 import sys
 import time
+import tomllib
 from collections import defaultdict
 from pathlib import Path
 
@@ -30,6 +32,7 @@ from elucidate.predict import predict  # noqa: E402
 from elucidate.predict import core, tables  # noqa: E402
 
 DATA = ROOT / "tests" / "benchmarks" / "data" / "shifts_1h.csv"
+UNKNOWNS = ROOT / "tests" / "benchmarks" / "data" / "unknowns.toml"
 
 
 def _canon(smiles: str) -> str:
@@ -145,5 +148,66 @@ def main() -> None:
     print(f"Speed, repeated SMILES (cached): {dt * 1e6:.1f} µs per molecule")
 
 
+_PEAK = re.compile(r"(\d+\.\d+)(?:\s*[-–]\s*\d+\.\d+)?\s*\(([^)]*)\)")
+_MULT = re.compile(r"^\s*(br\s*s|brs|bs|s|d|t|q|quint|p|sext|sept|hept|m|[dtq]{2,4})\b")
+_NH = re.compile(r"(\d+)\s*H\b")
+
+
+def _observed_peaks(h1: str) -> list[tuple[float, str, int]]:
+    out = []
+    for m in _PEAK.finditer(h1):
+        inner = m.group(2)
+        mm = _MULT.match(inner)
+        nh = _NH.search(inner)
+        if not mm or not nh:
+            continue
+        mult = mm.group(1).replace(" ", "")
+        if mult in ("brs", "bs"):
+            continue  # broad singlets: exchangeable H, not scored here
+        mult = {"p": "quint", "hept": "sept"}.get(mult, mult)
+        out.append((float(m.group(1)), mult, int(nh.group(1))))
+    return out
+
+
+def unknowns() -> None:
+    """13C (sorted-order matching) and multiplicity agreement on the solver's
+    benchmark unknowns (tests/benchmarks/data/unknowns.toml)."""
+    if not UNKNOWNS.exists():
+        return
+    cases = tomllib.loads(UNKNOWNS.read_text(encoding="utf-8"))["case"]
+    c13_err: list[float] = []
+    n_c13 = 0
+    mult_ok = mult_all = 0
+    misses: list[str] = []
+    for case in cases:
+        p = predict(case["smiles"])
+        if case.get("c13"):
+            obs = sorted((float(x.split("(")[0]) for x in case["c13"].split(",")), reverse=True)
+            pred = sorted((c.shift for c in p.carbons), reverse=True)
+            if len(obs) == len(pred):
+                n_c13 += 1
+                c13_err += [abs(a - b) for a, b in zip(obs, pred)]
+        peaks = _observed_peaks(case["h1"])
+        pool = [(e.h_count, e.multiplicity, e.shift) for e in p.environments if not e.exchangeable]
+        for shift, mult, nh in peaks:
+            mult_all += 1
+            near = sorted(pool, key=lambda x: abs(x[2] - shift))
+            if near and any(x[1] == mult for x in near[:1]):
+                mult_ok += 1
+            elif len(misses) < 40:
+                misses.append(f"{case['name']}: obs {shift:.2f} {mult} ({nh}H); nearest predicted "
+                              f"{near[0][2]:.2f} {near[0][1]} ({near[0][0]}H)" if near else case["name"])
+    print(f"\nUnknowns file: {len(cases)} cases")
+    if c13_err:
+        print(f"  13C MAE {statistics.mean(c13_err):.2f} ppm over {len(c13_err)} carbons in {n_c13} compounds "
+              f"(observed and predicted lists matched in sorted order; max {max(c13_err):.1f})")
+    if mult_all:
+        print(f"  1H multiplicity of the nearest predicted environment equals the reported one: "
+              f"{mult_ok}/{mult_all} peaks ({100 * mult_ok / mult_all:.0f}%)")
+        for line in misses:
+            print(f"    {line}")
+
+
 if __name__ == "__main__":
     main()
+    unknowns()

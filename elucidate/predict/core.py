@@ -10,7 +10,7 @@ from elucidate.errors import InputError
 from elucidate.model import Coupling, Environment, Prediction
 from elucidate.predict import tables
 from elucidate.predict.carbon import carbon_shifts
-from elucidate.predict.environments import diastereotopic, ranks, sites, stereo_pairs, stereocentres
+from elucidate.predict.environments import diastereotopic, ranks, sites, stereocentres
 from elucidate.predict.graph import build_graph
 from elucidate.predict.increments import (
     Shift,
@@ -134,7 +134,7 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
              warnings: tuple[str, ...]) -> Prediction:
     g = build_graph(mol)
     rk = ranks(mol)
-    stereo = stereo_pairs(mol)
+    stereo = g.stereo
     subs: dict[tuple[int, int], str] = {}
     ring_cache: dict[frozenset[int], Any] = {}
     site_list = sites(g, rk, stereo, subs)

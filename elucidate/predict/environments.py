@@ -12,11 +12,10 @@ from __future__ import annotations
 
 from typing import Any
 
-from elucidate.predict.graph import MolGraph
+from elucidate.predict.graph import MolGraph, substituent
 from elucidate.predict.increments import NAMES, Site
-from elucidate.predict.graph import substituent
 
-__all__ = ["ranks", "stereo_pairs", "sites", "diastereotopic", "stereocentres"]
+__all__ = ["ranks", "sites", "diastereotopic", "stereocentres"]
 
 
 def ranks(mol: Any) -> list[int]:
@@ -24,27 +23,6 @@ def ranks(mol: Any) -> list[int]:
     from rdkit import Chem
 
     return list(Chem.CanonicalRankAtoms(mol, breakTies=False))
-
-
-def stereo_pairs(mol: Any) -> dict[tuple[int, int], tuple[int, int, bool]]:
-    """Specified double-bond geometry: (begin, end) → (atom on begin side,
-    atom on end side, True if these two are cis)."""
-    from rdkit import Chem
-
-    out: dict[tuple[int, int], tuple[int, int, bool]] = {}
-    cis_kinds = (Chem.BondStereo.STEREOZ, Chem.BondStereo.STEREOCIS)
-    trans_kinds = (Chem.BondStereo.STEREOE, Chem.BondStereo.STEREOTRANS)
-    for bond in mol.GetBonds():
-        st = bond.GetStereo()
-        if st in cis_kinds or st in trans_kinds:
-            sa = list(bond.GetStereoAtoms())
-            if len(sa) != 2:
-                continue
-            i, j = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
-            is_cis = st in cis_kinds
-            out[(i, j)] = (sa[0], sa[1], is_cis)
-            out[(j, i)] = (sa[1], sa[0], is_cis)
-    return out
 
 
 def stereocentres(mol: Any) -> list[int]:
@@ -138,7 +116,7 @@ def sites(g: MolGraph, rk: list[int], stereo: dict[tuple[int, int], tuple[int, i
             else:
                 for cis in (p, q):
                     name = "H" if cis == -1 else NAMES.get(substituent(g, d, cis), "group")
-                    tag = f"cis to {name}" if cis == -1 else f"cis to {name}"
+                    tag = f"cis to {name}"
                     out.append((Site(c, 1, tag, cis_item=cis, partner=d), "alkene"))
             continue
         # one H and one heavy group s1 on c

@@ -21,6 +21,8 @@ from typing import Any
 __all__ = ["MolGraph", "build_graph", "substituent", "alkyl_subtype", "FALLBACK"]
 
 HALOGENS = frozenset({"F", "Cl", "Br", "I"})
+_CIS = ("STEREOZ", "STEREOCIS")
+_TRANS = ("STEREOE", "STEREOTRANS")
 
 #: Where a class has no row in a table, the next coarser class to try.
 FALLBACK: dict[str, str] = {
@@ -78,12 +80,14 @@ class MolGraph:
     rings: list[tuple[int, ...]]
     atom_rings: list[list[int]]
     aro_system: dict[int, frozenset[int]] = field(default_factory=dict)
+    sp3: list[bool] = field(default_factory=list)
+    stereo: dict[tuple[int, int], tuple[int, int, bool]] = field(default_factory=dict)
 
     def heavy_degree(self, i: int) -> int:
         return len(self.nbrs[i])
 
     def is_sp3_carbon(self, i: int) -> bool:
-        return self.el[i] == "C" and not self.arom[i] and all(o == 1 for o in self.order[i].values())
+        return self.sp3[i]
 
     def double_partner(self, i: int, exclude: int = -1) -> int:
         """Neighbour joined to ``i`` by a (non-aromatic) double bond, or −1."""
@@ -123,6 +127,7 @@ def build_graph(mol: Any) -> MolGraph:
         charge.append(atom.GetFormalCharge())
     nbrs: list[list[int]] = [[] for _ in range(n)]
     order: list[dict[int, int]] = [{} for _ in range(n)]
+    stereo: dict[tuple[int, int], tuple[int, int, bool]] = {}
     for bond in mol.GetBonds():
         i, j = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
         bt = bond.GetBondTypeAsDouble()
@@ -131,12 +136,22 @@ def build_graph(mol: Any) -> MolGraph:
         nbrs[j].append(i)
         order[i][j] = o
         order[j][i] = o
+        if o == 2:
+            st = str(bond.GetStereo())
+            if st in _CIS or st in _TRANS:
+                sa = list(bond.GetStereoAtoms())
+                if len(sa) == 2:
+                    is_cis = st in _CIS
+                    stereo[(i, j)] = (sa[0], sa[1], is_cis)
+                    stereo[(j, i)] = (sa[1], sa[0], is_cis)
     rings = [tuple(r) for r in mol.GetRingInfo().AtomRings()]
     atom_rings: list[list[int]] = [[] for _ in range(n)]
     for k, r in enumerate(rings):
         for a in r:
             atom_rings[a].append(k)
     g = MolGraph(n, el, hs, arom, charge, nbrs, order, rings, atom_rings)
+    g.sp3 = [el[i] == "C" and not arom[i] and all(o == 1 for o in order[i].values()) for i in range(n)]
+    g.stereo = stereo
     # fused aromatic ring systems
     aro_rings = [set(r) for r in rings if all(arom[a] for a in r)]
     systems: list[set[int]] = []

@@ -139,6 +139,13 @@ def test_electronegative_neighbour_downfield(smiles: str, order: tuple[int, ...]
     assert len(set(shifts)) == len(shifts)
 
 
+def test_chelated_phenol_oh() -> None:
+    # phenol OH H-bonded to an ortho C=O appears at 10–12.5 ppm (common practice)
+    oh = one_env(predict("COC(=O)c1ccccc1O"), 10)
+    assert 10.0 <= oh.shift <= 12.5 and oh.exchangeable
+    assert one_env(predict("Oc1ccccc1"), 0).shift < 8.0
+
+
 def test_alkyne_and_formate_classes() -> None:
     # terminal alkyne H 1.7–3.3, formate H ~8.0 (common practice)
     assert 1.7 <= one_env(predict("C#CCCCC"), 0).shift <= 3.3

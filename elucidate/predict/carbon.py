@@ -90,7 +90,7 @@ def _sp3(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> tuple[float, 
                 corr += steric.get((min(deg, 4), min(dy, 4)), 0.0)
         if corr:
             terms.append((corr, "steric corrections"))
-    unc = 2.5
+    unc = 2.5 + (2.0 if g.atom_rings[c] else 0.0)  # Grant–Paul is less good in rings
     cols = ("alpha", "beta", "gamma")
     for a, d in dist.items():
         if d > 2:
@@ -107,7 +107,10 @@ def _sp3(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> tuple[float, 
                 continue
             if fell:
                 unc += 1.5
-            terms.append((row[cols[d]], f"{cols[d]}-{NAMES.get(used, used)}"))
+            col = cols[d]
+            if d == 0 and deg >= 2:
+                col = "alpha_internal"  # substituent on an internal (branched) carbon
+            terms.append((row[col], f"{cols[d]}-{NAMES.get(used, used)}{' (internal)' if col == 'alpha_internal' else ''}"))
             if d == 0:
                 unc += 1.0
     total, deriv = _close(terms, "Grant–Paul + substituent increments")
@@ -227,7 +230,7 @@ def _carbonyl(g: MolGraph, c: int) -> tuple[float, float, tuple[str, ...]]:
             return _class("formate")
         return _class("ester_conj" if conj else "ester")
     if n_n:
-        return _class("amide")
+        return _class("formamide" if g.hs[c] else "amide")
     if g.hs[c]:
         return _class("aldehyde_conj" if conj else "aldehyde")
     return _class("ketone_conj" if conj else "ketone")

@@ -483,6 +483,12 @@ def hetero_h_shift(g: MolGraph, x: int, solvent: str | None) -> Shift:
         y = others[0]
         if g.el[y] == "C":
             if g.arom[y]:
+                # an ortho C=O holds the OH in an intramolecular H bond
+                for z in g.nbrs[y]:
+                    if g.arom[z]:
+                        for w in g.nbrs[z]:
+                            if w != y and not g.arom[w] and g.is_carbonyl_carbon(w):
+                                return special_shift("OH_phenol_chelated", label, solvent, "XH")
                 return special_shift("OH_phenol", label, solvent, "XH")
             if g.is_carbonyl_carbon(y):
                 return special_shift("OH_acid", label, solvent, "XH")
@@ -528,6 +534,10 @@ def aldehyde_shift(g: MolGraph, c: int, solvent: str | None) -> Shift:
         return special_shift("formamide", "HC(=O)N", solvent, "aldehyde")
     if g.el[y] == "C":
         if g.arom[y]:
+            ortho = [w for z in g.nbrs[y] if g.arom[z] for w in g.nbrs[z]
+                     if w != y and not g.arom[w]]
+            if ortho and all(g.el[w] != "O" or g.hs[w] == 0 for w in ortho):
+                return special_shift("CHO_Ar_ortho", "CHO", solvent, "aldehyde")
             return special_shift("CHO_Ar", "CHO", solvent, "aldehyde")
         if g.double_partner(y) >= 0 or g.triple_partner(y) >= 0:
             return special_shift("CHO_C=C", "CHO", solvent, "aldehyde")

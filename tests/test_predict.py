@@ -202,6 +202,30 @@ def test_atoms_follow_input_order() -> None:
     assert one_env(predict("O=C(OCC)C"), 3).multiplicity == "q"
 
 
+INVARIANCE = ["CCOC(C)=O", "C=Cc1ccccc1", "CC(O)c1ccc(OC)cc1", "O=Cc1ccco1", "CC/C=C/C(=O)OCC",
+              "Cc1ccncc1", "CCN(CC)C(=O)c1ccccc1", "OC1CCCCC1", "C#CCOC", "CC(C)CC(=O)O",
+              "Clc1ccc(Br)cc1", "CC1=CCCCC1", "c1ccc2[nH]ccc2c1"]
+
+
+@pytest.mark.parametrize("smiles", INVARIANCE)
+def test_same_spectrum_for_any_atom_order(smiles: str) -> None:
+    # the prediction belongs to the molecule, not to how its SMILES is written
+    from rdkit import Chem
+    import random
+
+    def summary(s: str) -> list[tuple[int, float, str, bool]]:
+        p = predict(s)
+        return sorted((e.h_count, e.shift, e.multiplicity, e.exchangeable) for e in p.environments)
+
+    ref = summary(smiles)
+    mol = Chem.MolFromSmiles(smiles)
+    random.seed(7)
+    for k in range(5):
+        Chem.rdBase.SeedRandomNumberGenerator(k + 1)
+        other = Chem.MolToSmiles(mol, doRandom=True, canonical=False)
+        assert summary(other) == ref, other
+
+
 def test_terminal_alkene_splits_into_two_environments() -> None:
     # the two =CH2 protons of a vinyl group are different (common practice)
     p = predict("C=COC(C)=O")

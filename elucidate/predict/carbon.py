@@ -25,7 +25,7 @@ from typing import Any
 from elucidate.model import CarbonShift
 from elucidate.predict import tables
 from elucidate.predict.graph import MolGraph, alkyl_subtype, substituent
-from elucidate.predict.increments import NAMES, lookup, parent_position, _ring_distances
+from elucidate.predict.increments import NAMES, lookup, parent_position, ring_distances
 
 __all__ = ["carbon_shifts"]
 
@@ -185,7 +185,7 @@ def _aromatic(g: MolGraph, mol: Any, c: int, subs: dict[tuple[int, int], str],
         terms = [(c13, f"{name} parent value")]
         unc = 3.0
         method = "parent ring value + benzene increments transferred"
-    dist = _ring_distances(g, system, c)
+    dist = ring_distances(g, system, c)
     cols = {0: "ipso", 1: "ortho", 2: "meta", 3: "para"}
     for a in sorted(system):
         d = dist.get(a)

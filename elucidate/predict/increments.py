@@ -381,7 +381,7 @@ def parent_position(g: MolGraph, mol: Any, atom: int,
     return found
 
 
-def _ring_distances(g: MolGraph, system: frozenset[int], start: int) -> dict[int, int]:
+def ring_distances(g: MolGraph, system: frozenset[int], start: int) -> dict[int, int]:
     dist = {start: 0}
     frontier = [start]
     while frontier:
@@ -432,7 +432,7 @@ def aromatic_shift(g: MolGraph, mol: Any, c: int, subs: dict[tuple[int, int], st
         unc = 0.15
         method = "parent ring value + benzene increments transferred by ring distance"
         kind = "heteroaromatic"
-    dist = _ring_distances(g, system, c)
+    dist = ring_distances(g, system, c)
     pos_name = {1: "ortho", 2: "meta", 3: "para"}
     any_sub = False
     for a in sorted(system):

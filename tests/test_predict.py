@@ -341,6 +341,19 @@ def test_bad_field(field: object) -> None:
         predict("CCO", field_mhz=field)  # type: ignore[arg-type]
 
 
+def test_mol_with_explicit_h_and_unsanitised_mol() -> None:
+    from rdkit import Chem
+
+    p = predict(Chem.AddHs(Chem.MolFromSmiles("CCO")))
+    assert [(e.atoms, e.h_count) for e in p.environments] == [((0,), 3), ((1,), 2), ((2,), 1)]
+    rw = Chem.RWMol()
+    rw.AddAtom(Chem.Atom(6))
+    rw.AddAtom(Chem.Atom(9))
+    rw.AddBond(0, 1, Chem.BondType.DOUBLE)
+    with pytest.raises(InputError, match="not a valid molecule"):
+        predict(rw.GetMol())
+
+
 def test_unknown_solvent_warns() -> None:
     p = predict("CCO", solvent="unobtainium-d9")
     assert p.warnings and "unobtainium-d9" in p.warnings[0]

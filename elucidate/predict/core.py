@@ -97,7 +97,18 @@ def predict(smiles_or_mol: Any, *, solvent: str | None = None,
 
     if not isinstance(smiles_or_mol, Chem.Mol):
         raise InputError(f"structure {smiles_or_mol!r}: expected a SMILES string or an RDKit molecule")
-    mol = Chem.RemoveHs(smiles_or_mol) if any(a.GetAtomicNum() == 1 for a in smiles_or_mol.GetAtoms()) else smiles_or_mol
+    from rdkit import rdBase
+
+    mol = Chem.Mol(smiles_or_mol)
+    block = rdBase.BlockLogs()
+    try:
+        Chem.SanitizeMol(mol)
+        if any(a.GetAtomicNum() == 1 for a in mol.GetAtoms()):
+            mol = Chem.RemoveHs(mol)
+    except (ValueError, RuntimeError) as err:  # RDKit sanitisation errors
+        raise InputError(f"structure '{Chem.MolToSmiles(smiles_or_mol)}': not a valid molecule ({err})") from err
+    finally:
+        del block
     return _predict(mol, Chem.MolToSmiles(mol), solvent_name, field_mhz, tuple(warnings))
 
 

@@ -22,10 +22,8 @@ from pathlib import Path
 from typing import Any, NamedTuple
 
 import pytest
-
-rdkit = pytest.importorskip("rdkit")
-from rdkit import Chem, RDLogger  # noqa: E402
-from rdkit.Chem import Descriptors, rdMolDescriptors  # noqa: E402
+from rdkit import Chem, RDLogger
+from rdkit.Chem import Descriptors, rdMolDescriptors
 
 RDLogger.DisableLog("rdApp.*")
 

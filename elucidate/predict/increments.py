@@ -34,8 +34,9 @@ from typing import Any
 from elucidate.predict import tables
 from elucidate.predict.graph import FALLBACK, HALOGENS, MolGraph, alkyl_subtype, substituent
 
-__all__ = ["Shift", "Site", "sp3_shift", "alkene_shift", "aromatic_shift", "special_shift",
-           "hetero_h_shift", "lookup", "NAMES"]
+__all__ = ["Shift", "Site", "NAMES", "lookup", "special_shift", "sp3_shift", "alkene_shift",
+           "aromatic_shift", "parent_position", "ring_distances", "hetero_h_shift",
+           "aldehyde_shift", "alkyne_shift"]
 
 #: How a class key reads in a derivation.
 NAMES: dict[str, str] = {

@@ -136,7 +136,7 @@ def _parse(smiles: str) -> Any:
     return mol
 
 
-@functools.lru_cache(maxsize=8192)
+@functools.lru_cache(maxsize=2048)
 def _cached(smiles: str, solvent: str | None, field: float | None, warnings: tuple[str, ...]) -> Prediction:
     return _predict(_parse(smiles), smiles, solvent, field, warnings)
 

@@ -144,6 +144,9 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
 
     alpha = [(x, key(c, x)) for x in g.nbrs[c]]
     func = [(x, k) for x, k in alpha if k != "R"]
+    group = label
+    if func:
+        label = f"{group} next to {', '.join(NAMES.get(k, k) for _, k in func)}"
     notes: list[str] = []
     unc = 0.15
     terms: list[tuple[float, str]] = []
@@ -183,7 +186,7 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
     if nh == 4:
         b = 0.23
         notes.append("note: methane itself (0.23, from memory)")
-    terms.append((b, f"{label} base"))
+    terms.append((b, f"{group} base"))
     for x, k in func:
         row, used, fell = lookup(table, k)
         if row is None:

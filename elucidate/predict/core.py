@@ -46,8 +46,9 @@ SOLVENTS: dict[str, str] = {
 #: from memory).  Aromatic rings are read first order down to Δν/J = 1.
 FIRST_ORDER_MIN_RATIO = 6.0
 
-#: Aromatic H of one ring predicted within this range overlap and are
-#: reported as m, as chemists do (e.g. the five H of toluene; common practice).
+#: Aromatic H of one ring (three or more H environments) predicted within this
+#: range overlap and are reported as m, as chemists do (e.g. the five H of
+#: toluene; common practice).
 AROMATIC_OVERLAP_PPM = 0.15
 
 #: Solvents whose deuterium exchanges with OH/NH/SH.
@@ -190,7 +191,9 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
         s0, kind0 = site_list[ks[0]]
         if kind0 == "aromatic" and s0.atom in g.aro_system:
             ring_shifts.setdefault(g.aro_system[s0.atom], []).append(shifts[e].shift)
-    ring_spread = {k: max(v) - min(v) for k, v in ring_shifts.items() if len(v) > 1}
+    # (a ring with two H environments, such as a para-disubstituted one, is read as
+    # two doublets however close they are)
+    ring_spread = {k: max(v) - min(v) for k, v in ring_shifts.items() if len(v) > 2}
     jtab = tables.couplings()
     envs: list[Environment] = []
     for e, ks in enumerate(members):

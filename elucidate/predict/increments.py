@@ -483,7 +483,7 @@ def hetero_h_shift(g: MolGraph, x: int, solvent: str | None) -> Shift:
     if e == "O":
         label = "OH"
         if not others:
-            return special_shift("OH_other", label, solvent, "XH", note="note: water / hydroxide")
+            return special_shift("water", "H2O", solvent, "XH")
         y = others[0]
         if g.el[y] == "C":
             if g.arom[y]:

@@ -393,6 +393,9 @@ def draw_molecule(
     opts.annotationFontScale = 0.75
     opts.bondLineWidth = 1.6
     opts.fillHighlights = True
+    # one scale for every drawing on the page (RDKit shrinks only what would not fit)
+    opts.fixedBondLength = max(18.0, min(width, height) / 7)
+    opts.maxFontSize = 18
     atoms = [i for i in sorted(colours) if 0 <= i < mol.GetNumAtoms()]
     atom_cols = {i: tint(colours[i], 0.45) for i in atoms}
     bonds = []

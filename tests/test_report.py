@@ -306,3 +306,25 @@ def test_sdf_of_no_candidates_is_empty(tmp_path):
     assert sdf_text(empty_result()) == ""
     with pytest.raises(InputError, match="--sdf"):
         write_sdf(ethyl_acetate_result(), tmp_path / "missing" / "x.sdf")
+
+
+def test_explain_page_for_a_candidate_and_a_rejection():
+    from types import SimpleNamespace
+
+    from elucidate.report import render_explain_html
+
+    result = ethyl_acetate_result()
+    cand = result.candidates[1]
+    good = SimpleNamespace(smiles=cand.smiles, verdict="poor fit", candidate=cand, rejection=None, rank=2)
+    page = _parse(render_explain_html(good, result.problem))
+    assert page.card_drawings == {"candidate-2": 1}
+    text = " ".join("".join(page.text).split())
+    assert "Verdict for CCC(=O)OC: poor fit (rank 2 among the candidates)" in text
+    rej = result.rejected[1]
+    bad = SimpleNamespace(smiles=rej.smiles, verdict="rejected", candidate=None, rejection=rej, rank=None)
+    html = render_explain_html(bad, result.problem)
+    assert not _URL.search(html)
+    page = _parse(html)
+    assert page.card_drawings == {}
+    assert sum(1 for t, a in page.tags if t == "svg" and a.get("class") == "mol") == 1  # the rejected structure
+    assert "no CH3 in the structure" in "".join(page.text)

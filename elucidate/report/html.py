@@ -21,6 +21,7 @@ import re
 from collections.abc import Iterable, Sequence
 from html import escape
 from pathlib import Path
+from typing import Any
 
 from elucidate import CAUTION, __version__
 from elucidate.errors import InputError
@@ -40,7 +41,15 @@ from elucidate.report.common import (
     tint,
 )
 
-__all__ = ["write_html", "render_html", "draw_molecule", "spectrum_svg", "multiplet_svg"]
+__all__ = [
+    "write_html",
+    "render_html",
+    "write_explain_html",
+    "render_explain_html",
+    "draw_molecule",
+    "spectrum_svg",
+    "multiplet_svg",
+]
 
 #: At most this many rejected structures are drawn as examples.
 MAX_REJECTION_EXAMPLES = 12
@@ -71,14 +80,7 @@ def write_html(result: SolveResult, path: str | Path, *, title: str | None = Non
     """
     if not isinstance(result, SolveResult):
         raise TypeError(f"expected a SolveResult, got {type(result).__name__}")
-    target = Path(path)
-    text = render_html(result, title=title, top=top)
-    try:
-        with open(target, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-    except OSError as err:
-        raise InputError(f"--report {target}: cannot write the file ({err.strerror})") from err
-    return target
+    return _write(Path(path), render_html(result, title=title, top=top))
 
 
 def render_html(result: SolveResult, *, title: str | None = None, top: int | None = None) -> str:
@@ -88,6 +90,49 @@ def render_html(result: SolveResult, *, title: str | None = None, top: int | Non
     if top is not None and top < 0:
         raise ValueError(f"top must be >= 0, got {top}")
     return _page(result, title, top)
+
+
+def render_explain_html(explanation: Any, problem: Problem | None = None, *, title: str | None = None) -> str:
+    """The page for ``explain``: one structure, as a candidate with its
+    evidence or as a rejection with its reasons.
+
+    ``explanation`` needs ``smiles`` and ``verdict`` and one of ``candidate``
+    (a :class:`Candidate`) or ``rejection`` (a :class:`Rejection`); ``rank``
+    and ``problem`` are used when present (``problem`` may also be passed).
+    """
+    problem = problem if problem is not None else getattr(explanation, "problem", None)
+    if not isinstance(problem, Problem):
+        raise TypeError("render_explain_html needs the Problem the structure was explained against")
+    cand = getattr(explanation, "candidate", None)
+    rej = getattr(explanation, "rejection", None)
+    smiles = getattr(explanation, "smiles", None) or (cand.smiles if cand else rej.smiles if rej else "?")
+    verdict = getattr(explanation, "verdict", None) or (cand.verdict if cand else "rejected")
+    rank = getattr(explanation, "rank", None)
+    result = SolveResult(
+        problem=problem,
+        complete=True,
+        candidates=(cand,) if cand is not None else (),
+        rejected=(rej,) if rej is not None else (),
+    )
+    heading = title or f"{problem.name + ': ' if problem.name else ''}{smiles}"
+    summary = f"<b>Verdict for {escape(smiles)}:</b> {escape(verdict)}"
+    if rank is not None:
+        summary += f" (rank {rank} among the candidates)"
+    return _page(result, heading, None, explain=summary)
+
+
+def write_explain_html(explanation: Any, path: str | Path, problem: Problem | None = None, *, title: str | None = None) -> Path:
+    """Write :func:`render_explain_html` to ``path``; :class:`InputError` if it cannot."""
+    return _write(Path(path), render_explain_html(explanation, problem, title=title))
+
+
+def _write(target: Path, text: str) -> Path:
+    try:
+        with open(target, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+    except OSError as err:
+        raise InputError(f"--report {target}: cannot write the file ({err.strerror})") from err
+    return target
 
 
 # ------------------------------------------------------------------ page
@@ -151,7 +196,7 @@ footer{color:var(--muted);font-size:12px;border-top:1px solid var(--line);paddin
 """
 
 
-def _page(result: SolveResult, title: str | None, top: int | None) -> str:
+def _page(result: SolveResult, title: str | None, top: int | None, *, explain: str | None = None) -> str:
     problem = result.problem
     heading = title or problem.name or f"Unknown {problem.formula.hill}"
     shown = result.candidates if top is None else result.candidates[:top]
@@ -172,12 +217,14 @@ def _page(result: SolveResult, title: str | None, top: int | None) -> str:
         "</header>",
         "<main>",
         _caution(),
-        _status(result),
-        _overview(result, shown),
     ]
+    if explain is None:
+        parts += [_status(result), _overview(result, shown)]
+    else:
+        parts.append(f'<div class="status">{explain}</div>')
     for cand in shown:
         parts.append(_candidate_card(problem, cand))
-    parts.append(_rejections(result))
+    parts.append(_rejections(result, explain is not None))
     parts.append(_input_echo(problem))
     parts.append(_caution())
     parts.append(
@@ -667,10 +714,10 @@ def multiplet_svg(signal: H1Signal, environments: Sequence[Environment], index: 
 # ------------------------------------------------------------ rejections
 
 
-def _rejections(result: SolveResult) -> str:
+def _rejections(result: SolveResult, single: bool = False) -> str:
     if not result.rejected_counts and not result.rejected:
         return ""
-    parts = ["<h2>Rejected structures</h2>"]
+    parts = ["<h2>Why it was rejected</h2>" if single else "<h2>Rejected structures</h2>"]
     if result.rejected_counts:
         total = sum(n for _, n in result.rejected_counts)
         rows = "".join(
@@ -682,7 +729,8 @@ def _rejections(result: SolveResult) -> str:
         )
     examples = result.rejected[:MAX_REJECTION_EXAMPLES]
     if examples:
-        parts.append("<p>Examples:</p><div class=\"examples\">")
+        parts.append("" if single else "<p>Examples:</p>")
+        parts.append('<div class="examples">')
         for rej in examples:
             parts.append(_rejection_example(rej))
         parts.append("</div>")

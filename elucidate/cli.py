@@ -120,6 +120,42 @@ def _root(
 # ---------------------------------------------------------------- read (parse)
 
 
+@app.command("read")
+@user_errors
+def read_command(
+    case: CaseArg = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Read an unknown and show what was understood: formula, DoU, the 1H and
+    13C signals normalised, solvent, field, constraints and warnings."""
+    from elucidate.parse import load_problem
+    from elucidate.parse.readback import readback_json, readback_text
+
+    problem = load_problem(
+        case,
+        formula=formula,
+        h1=h1,
+        c13=c13,
+        solvent=solvent,
+        field_mhz=field,
+        require=tuple(require or ()),
+        forbid=tuple(forbid or ()),
+    )
+    for message in problem.warnings:
+        warn(message)
+    if json_out:
+        emit_json(readback_json(problem))
+    else:
+        typer.echo(readback_text(problem))
+
+
 # ------------------------------------------------------- isomers (generate)
 
 
@@ -127,6 +163,187 @@ def _root(
 
 
 # ------------------------------------------------------ solve, explain (score)
+
+
+TopOpt = Annotated[int, typer.Option("--top", help="Number of ranked candidates to show.", min=1)]
+TimeLimitOpt = Annotated[
+    Optional[float],
+    typer.Option("--time-limit", help="Stop the search after this many seconds (best so far are shown)."),
+]
+MaxStructuresOpt = Annotated[
+    Optional[int],
+    typer.Option("--max-structures", help="Stop after generating this many structures.", min=1),
+]
+
+
+def _readback(problem: Any) -> str:
+    from elucidate.parse.readback import readback_text
+
+    text = readback_text(problem).rstrip()
+    if text.endswith(CAUTION):
+        text = text[: -len(CAUTION)].rstrip()
+    return text
+
+
+def _fmt_assignments(candidate: Any, problem: Any) -> list[str]:
+    lines = ["    signal            env  nH  predicted  mult (pred/obs)  cost"]
+    for a in candidate.assignments:
+        if a.signal is None:
+            where = "not observed"
+        else:
+            s = problem.h1[a.signal]
+            where = f"#{a.signal + 1} {s.shift:6.2f}"
+        obs_mult = a.multiplicity_observed or "-"
+        lines.append(
+            f"    {where:<17} {a.environment:>3}  {a.h_count:>2}  {a.predicted:9.2f}  "
+            f"{a.multiplicity_predicted + '/' + obs_mult:<15}  {a.cost:.2f}"
+        )
+    return lines
+
+
+def solve_text(result: Any, *, details: int = 3) -> str:
+    """Plain-text report of a :class:`SolveResult` (read-back, ranked table,
+    rejection summary, caution)."""
+    lines = [_readback(result.problem), ""]
+    if not result.complete:
+        lines += ["!" * 72, "! INCOMPLETE SEARCH: " + (result.stopped_by or "hypotheses capped")
+                  + " — best so far shown; the answer may be missing.", "!" * 72, ""]
+    for r in result.relaxed:
+        lines.append(f"Relaxed      {r}")
+    if result.relaxed:
+        lines.append("")
+    counts = dict(result.counts)
+    lines.append(
+        f"Searched     {counts.get('unique', 0)} structures ({counts.get('rejected', 0)} rejected, "
+        f"{counts.get('ranked', 0)} ranked) from {counts.get('generator_runs', 0)} generator runs; "
+        f"complete: {'yes' if result.complete else 'NO'}"
+    )
+    lines.append("")
+    if not result.candidates:
+        lines.append("No candidate fits the data.")
+    else:
+        lines.append(" rank  score   verdict      SMILES")
+        for c in result.candidates:
+            lines.append(f" {c.rank:>4}  {c.score:6.2f}  {c.verdict:<11}  {c.smiles}")
+        for c in result.candidates[:details]:
+            lines += ["", f"  #{c.rank} {c.smiles}"]
+            lines += _fmt_assignments(c, result.problem)
+            lines += [f"    note: {n}" for n in c.notes]
+    if result.rejected_counts:
+        lines += ["", "Rejected (count  reason)"]
+        lines += [f"  {n:>5}  {reason}" for reason, n in result.rejected_counts]
+    lines += ["", CAUTION]
+    return "\n".join(lines)
+
+
+def explain_text(explanation: Any) -> str:
+    """Plain-text report of an :class:`Explanation`."""
+    e = explanation
+    lines = [_readback(e.problem), "", f"Structure    {e.smiles}", f"Verdict      {e.verdict}"]
+    if e.rank is not None:
+        lines.append(f"Rank         {e.rank} of {e.total} candidates")
+    else:
+        lines.append(f"Rank         not among the {e.total} candidates generated under the hard constraints")
+    if not e.complete:
+        lines.append("!! INCOMPLETE SEARCH: the rank is among the structures seen")
+    if e.candidate is not None:
+        lines += ["", f"Score        {e.candidate.score:.2f}"]
+        lines += _fmt_assignments(e.candidate, e.problem)
+    if e.reasons:
+        lines += ["", "Reasons"]
+        lines += [f"  - {r}" for r in e.reasons]
+    lines += ["", CAUTION]
+    return "\n".join(lines)
+
+
+def _load(case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any) -> Any:
+    from elucidate.parse import load_problem
+
+    problem = load_problem(
+        case, formula=formula, h1=h1, c13=c13, solvent=solvent, field_mhz=field,
+        require=tuple(require or ()), forbid=tuple(forbid or ()),
+    )
+    for message in problem.warnings:
+        warn(message)
+    return problem
+
+
+@app.command("solve")
+@user_errors
+def solve_command(
+    case: CaseArg = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    top: TopOpt = 10,
+    time_limit: TimeLimitOpt = None,
+    max_structures: MaxStructuresOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Rank every structure consistent with a formula and a 1H (13C) peak list.
+
+    A search stopped by --time-limit or --max-structures still exits 0: the
+    output says INCOMPLETE prominently and JSON has "complete": false.
+    """
+    from elucidate.solve import solve
+
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    result = solve(problem, top=top, time_limit_s=time_limit, max_structures=max_structures)
+    if not result.complete:
+        warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
+    if json_out:
+        doc = result.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
+    else:
+        typer.echo(solve_text(result))
+
+
+@app.command("explain")
+@user_errors
+def explain_command(
+    first: Annotated[
+        str, typer.Argument(metavar="[CASE.toml] SMILES", help="The structure as SMILES, optionally after a TOML case file.",
+                            show_default=False)
+    ],
+    second: Annotated[Optional[str], typer.Argument(hidden=True, metavar="[SMILES]", show_default=False)] = None,
+    case: Annotated[
+        Optional[Path],
+        typer.Option("--case", help="TOML case file (options override its keys).", dir_okay=False),
+    ] = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    time_limit: TimeLimitOpt = None,
+    max_structures: MaxStructuresOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Say whether one structure fits the data (consistent / poor fit /
+    rejected), with its assignment, the reasons, and its rank."""
+    from elucidate.solve import explain
+
+    smiles = first
+    if second is not None:
+        if case is not None:
+            raise InputError(f"explain: give the case file once (--case {case} and {first!r})")
+        case, smiles = Path(first), second
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    explanation = explain(problem, smiles, time_limit_s=time_limit, max_structures=max_structures)
+    if json_out:
+        doc = explanation.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
+    else:
+        typer.echo(explain_text(explanation))
+
 
 
 def main() -> None:

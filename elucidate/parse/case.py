@@ -40,6 +40,7 @@ __all__ = [
     "load_problem",
     "problem_from_toml",
     "read_peak_file",
+    "read_peak_text",
     "validate_smarts",
 ]
 
@@ -152,9 +153,25 @@ def read_peak_file(path: Path, nucleus: str, formula: Formula | None = None) -> 
     else from the content (``##`` records; a header row of known column names;
     otherwise the text is read like ``--h1``/``--c13`` text).
     """
-    text = _read_text(path, f"{nucleus} file")
-    name = path.name
-    suffix = path.suffix.lower()
+    return read_peak_text(_read_text(path, f"{nucleus} file"), path.name, nucleus, formula)
+
+
+def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None = None) -> PeakList:
+    """Read the contents of a peak file called ``name`` (see :func:`read_peak_file`).
+
+    Parameters
+    ----------
+    text : str
+        File contents.
+    name : str
+        File name: its suffix picks the reader, and messages name it.
+    nucleus : {"1H", "13C"}
+    formula : Formula, optional
+        For scaling relative 1H integrals.
+    """
+    if nucleus not in ("1H", "13C"):
+        raise InputError(f"nucleus must be 1H or 13C, not '{_short(str(nucleus))}'")
+    suffix = Path(name).suffix.lower()
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
         doc = read_jcamp(text, name)
         if nucleus == "1H":

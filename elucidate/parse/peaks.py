@@ -502,8 +502,8 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
             continue
         # 3. multiplicity (and the flags br / app)
         mult = normalise_multiplicity(part)
-        if mult is not None and (label is None or (not label and mult.label)):
-            if label is None or mult.label:
+        if mult is not None and (not mult.label or not label):
+            if mult.label:
                 label = mult.label
             raw.broad = raw.broad or mult.broad
             raw.apparent = raw.apparent or mult.apparent
@@ -642,8 +642,11 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
         raise InputError(f"formula {formula.hill} has no H, but a 1H peak list was given")
     total = sum(values)
     shown = ", ".join(f"{v:g}" for v in values[:4]) + (", …" if len(values) > 4 else "")
-    # Largest whole-number total <= formula H that makes every signal a whole number of H.
-    for target in range(n_h, max(len(values), math.ceil(n_h / 2)) - 1, -1):
+    # Largest whole-number total <= formula H that makes every signal a whole number of H;
+    # at most the H that could sit on O, S, N, P (exchangeable, often unseen) may be missing.
+    exchangeable = formula["O"] + formula["S"] + 2 * (formula["N"] + formula["P"])
+    lowest = max(len(values), n_h - exchangeable, 1)
+    for target in range(n_h, lowest - 1, -1):
         factor = target / total
         scaled = [v * factor for v in values]
         if all(round(x) >= 1 and abs(x - round(x)) <= INTEGER_TOLERANCE for x in scaled):

@@ -107,8 +107,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
 
 
 def _records(text: str, name: str) -> list[tuple[str, str, int]]:
-    """(normalised label, value, line number) for each ##LABEL= record."""
-    out: list[tuple[str, str, int]] = []
+    """(normalised label, value, line number) for each ##LABEL= record.
+
+    Continuation lines are joined with line-number markers so that messages
+    about a peak can name its own line.
+    """
+    heads: list[tuple[str, int]] = []
+    values: list[list[str]] = []
     for n, line in enumerate(text.lstrip("\ufeff").splitlines(), start=1):
         if "$$" in line:
             line = line[: line.index("$$")]
@@ -117,15 +122,15 @@ def _records(text: str, name: str) -> list[tuple[str, str, int]]:
             m = _LDR.match(s)
             if m is None:
                 raise InputError(f"{name} line {n}: '{_short(s)}' has no '=' (expected ##LABEL=value)")
-            out.append((norm_label(m.group(1)), m.group(2).strip(), n))
-        elif s and out:
-            label, value, start = out[-1]
-            out[-1] = (label, value + "\n" + f"\x00{n}\x00" + s, start)
+            heads.append((norm_label(m.group(1)), n))
+            values.append([m.group(2).strip()])
+        elif s and heads:
+            values[-1].append(f"\x00{n}\x00" + s)
         elif s:
             raise InputError(f"{name} line {n}: '{_short(s)}' comes before any ##LABEL= record")
-    if not out:
+    if not heads:
         raise InputError(f"{name}: not a JCAMP-DX file (no ##LABEL= records)")
-    return out
+    return [(label, "\n".join(parts), n) for (label, n), parts in zip(heads, values)]
 
 
 def _blocks(records: list[tuple[str, str, int]]) -> list[list[tuple[str, str, int]]]:
@@ -141,7 +146,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
     """Split a record value into (line number, text) using the markers from _records."""
     out = []
     for i, piece in enumerate(value.split("\n")):
-        m = re.match(r"\x00(\d+)\x00(.*)", piece, re.DOTALL)
+        m = re.match(r"\x00([0-9]+)\x00(.*)", piece, re.DOTALL)
         if m:
             out.append((int(m.group(1)), m.group(2)))
         else:
@@ -150,7 +155,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
 
 
 def _clean(value: str) -> str:
-    return re.sub(r"\x00\d+\x00", "", value).strip()
+    return re.sub(r"\x00[0-9]+\x00", "", value).strip()
 
 
 def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:

@@ -58,14 +58,14 @@ MAX_RELATIVE_INTEGRAL = 1.0e6
 #: A scaled integral this close to a whole number counts as that number of H.
 INTEGER_TOLERANCE = 0.2
 
-_NUM = r"[+\-−]?(?:\d+(?:\.\d*)?|\.\d+)"
+_NUM = r"[+\-−]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)"
 _NUM_RE = re.compile(_NUM)
-_NUM_EXP_RE = re.compile(_NUM + r"(?:[eE][+\-]?\d+)?")
+_NUM_EXP_RE = re.compile(_NUM + r"(?:[eE][+\-]?[0-9]+)?")
 _RANGE_SEP = re.compile(r"\s*(?:–|—|‒|-|−|to\b)\s*")
-_INTEGRAL = re.compile(r"(" + _NUM + r"(?:[eE][+\-]?\d+)?)\s*H(?:'?s)?", re.IGNORECASE)
+_INTEGRAL = re.compile(r"(" + _NUM + r"(?:[eE][+\-]?[0-9]+)?)\s*H(?:'?s)?", re.IGNORECASE)
 _HZ_NUMBER = re.compile(r"(" + _NUM + r")\s*Hz", re.IGNORECASE)
 _J_START = re.compile(
-    r"(?:\d\s*)?J(?P<sub>[^=:\d\s]{0,12})\s*(?:\d(?=\s*[=:]))?\s*[=:≈~]?\s*(?P<rest>.*)", re.DOTALL
+    r"(?:[0-9]\s*)?J(?P<sub>[^=:0-9\s]{0,12})\s*(?:[0-9](?=\s*[=:]))?\s*[=:≈~]?\s*(?P<rest>.*)", re.DOTALL
 )
 _DELTA = r"(?:δ|delta|d(?=\s*[=:]))\s*[HC]?\s*(?:\(\s*ppm\s*\)|/\s*ppm|,?\s*ppm)?\s*[:=]?"
 _HEADER = re.compile(
@@ -718,7 +718,7 @@ def _c13_details(raw: RawC13, body: str, body_pos: int) -> None:
         key = " ".join(part.lower().replace("×", " x ").split())
         if not key:
             continue
-        m = re.fullmatch(r"(\d{1,6})\s*c(?:\s*x)?|x\s*(\d{1,6})|(\d{1,6})\s*x|(\d{1,6})\s*x\s*(ch3|ch2|ch|c|cq)", key)
+        m = re.fullmatch(r"([0-9]{1,6})\s*c(?:\s*x)?|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|c|cq)", key)
         if m:
             digits = next(g for g in m.groups()[:4] if g)
             raw.carbons = int(digits)

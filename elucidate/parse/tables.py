@@ -35,9 +35,12 @@ from elucidate.parse.peaks import (
     to_float,
 )
 
-__all__ = ["Table", "read_table", "h1_rows", "c13_rows", "looks_like_table", "row_to_h1", "row_to_c13"]
+__all__ = ["MAX_ROWS", "Table", "read_table", "h1_rows", "c13_rows", "looks_like_table", "row_to_h1", "row_to_c13"]
 
 csv.field_size_limit(1 << 20)
+
+#: More rows than this is not a table of signals.
+MAX_ROWS = 200
 
 # Normalised header name -> role.  Order of checks in _role() handles prefixes.
 _EXACT = {
@@ -116,7 +119,7 @@ def looks_like_table(text: str) -> bool:
             continue
         cells = _cells(s, _delimiter(s))
         return len(cells) >= 2 and sum(_role(c, "1H") is not None for c in cells) >= 2 and not re.match(
-            r"\s*[+\-−]?\d", s
+            r"\s*[+\-−]?[0-9]", s
         )
     return False
 
@@ -189,11 +192,16 @@ def read_table(text: str, name: str, nucleus: str) -> Table:
         raise InputError(f"{name}: not a readable table ({err})") from err
     if not rows:
         raise InputError(f"{name}: the table has a header but no peaks")
+    if len(rows) > MAX_ROWS:
+        raise InputError(
+            f"{name}: {len(rows)} rows — more than {MAX_ROWS}; this looks like a line list of a "
+            "whole spectrum, give one row per signal"
+        )
     return Table(name, tuple(roles), tuple(rows), tuple(ignored), decimal_comma)
 
 
 def _num(cell: str, what: str, where: str, decimal_comma: bool) -> float:
-    if decimal_comma and re.fullmatch(r"[+\-−]?\d+,\d+", cell.strip()):
+    if decimal_comma and re.fullmatch(r"[+\-−]?[0-9]+,[0-9]+", cell.strip()):
         cell = cell.replace(",", ".")
     return to_float(cell, what, where)
 
@@ -210,7 +218,7 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
         if not cell:
             raise InputError(f"{where}: no shift")
         if decimal_comma:
-            cell = re.sub(r"(\d),(\d)", r"\1.\2", cell)
+            cell = re.sub(r"([0-9]),([0-9])", r"\1.\2", cell)
         a, b, end = _shift_head(cell, cell, 0, where)
         if cell[end:].strip():
             raise InputError(f"{where}: shift '{_short(cell)}' is not a shift or a range")
@@ -234,7 +242,7 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
     if j_cell:
         jm = _J_START.fullmatch(j_cell)
         rest = jm.group("rest") if jm else j_cell
-        if decimal_comma and re.fullmatch(r"\s*\d+,\d+\s*(?:Hz)?\s*", rest):
+        if decimal_comma and re.fullmatch(r"\s*[0-9]+,[0-9]+\s*(?:Hz)?\s*", rest):
             rest = rest.replace(",", ".")
         couplings, _ = _j_values(rest, 0, lambda i: f"{where} (J column)")
     if "nh" in row:

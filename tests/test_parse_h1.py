@@ -77,6 +77,10 @@ def test_header_gives_field_and_solvent() -> None:
     assert (peaks.field_mhz, peaks.solvent) == (500.0, "CDCl3")
     peaks = read_h1_text("1H-NMR (DMSO-d6, 300 MHz, 298 K) δ (ppm): 7.26 (s, 1H)")
     assert (peaks.field_mhz, peaks.solvent) == (300.0, "DMSO-d6")
+    peaks = read_h1_text("δH (400 MHz; CDCl3) 7.30 (5 H, m, Ph), 4.50 (2 H, s)")
+    assert (peaks.field_mhz, peaks.solvent, len(peaks.signals)) == (400.0, "CDCl3", 2)
+    peaks = read_h1_text("δ (ppm) 7.26 (s, 1H)")
+    assert (peaks.field_mhz, peaks.solvent) == (None, None)
     peaks = read_h1_text("δ 7.26 (s, 1H)")
     assert (peaks.field_mhz, peaks.solvent) == (None, None)
 

@@ -44,7 +44,6 @@ from elucidate.parse.multiplicity import normalise_multiplicity
 __all__ = [
     "H1_SHIFT_RANGE",
     "C13_SHIFT_RANGE",
-    "MAX_J_HZ",
     "MAX_H_PER_SIGNAL",
     "RawH1",
     "RawC13",
@@ -55,7 +54,6 @@ __all__ = [
     "read_c13_text",
     "finish_h1",
     "finish_c13",
-    "to_float",
 ]
 
 #: Accepted 1H shifts (ppm); outside this the list is probably not 1H.
@@ -78,6 +76,11 @@ _HEADER = re.compile(
     re.IGNORECASE,
 )
 _DELTA_ONLY = re.compile(r"\s*" + _DELTA, re.IGNORECASE)
+# "δH (400 MHz; CDCl3) 7.30 (5 H, m)": the header without "NMR"
+_DELTA_HEADER = re.compile(
+    r"\s*(?:δ|delta)\s*(?P<nucleus>[HC])?\s*\((?P<inner>[^()]*)\)\s*[:,]?\s*(?:ppm\b)?\s*[:=]?",
+    re.IGNORECASE,
+)
 _MHZ = re.compile(r"(" + NUMBER + r")\s*MHz", re.IGNORECASE)
 _TEMPERATURE = re.compile(NUMBER + r"\s*(?:K|°\s*C|ºC|C)", re.IGNORECASE)
 
@@ -286,8 +289,10 @@ def _header(text: str, what: str) -> tuple[int, float | None, str | None, str | 
     """Where the signals start, and the field/solvent/nucleus the header states."""
     m = _HEADER.match(text)
     if m is None or not re.search(r"NMR", m.group(0), re.IGNORECASE):
-        d = _DELTA_ONLY.match(text)
-        return (d.end() if d else 0), None, None, None
+        m = _DELTA_HEADER.match(text)
+        if m is None or m.group("inner").strip().lower() == "ppm":
+            d = _DELTA_ONLY.match(text)
+            return (d.end() if d else 0), None, None, None
     nucleus = None
     if m.group("nucleus"):
         nucleus = "C" if "C" in m.group("nucleus").upper() or "3" in m.group("nucleus") else "H"

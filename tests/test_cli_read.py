@@ -92,10 +92,17 @@ def test_text_readback_of_a_case() -> None:
     assert result.exit_code == 0
     out = result.stdout
     for expected in ("U-040", "C9H10O", "DoU          5", "CDCl3", "400 MHz", "7.86", "8.2", "ArCH3",
-                     "197.8", "CH3", "Warnings     1", CAUTION):
+                     "197.8", "CH3", "Warnings     none", CAUTION):
         assert expected in out, expected
-    # The warning also goes to stderr, one line each.
-    assert result.stderr.startswith("warning: 1H signal at 7.25 ppm")
+    assert result.stderr == ""
+
+
+def test_text_readback_lists_warnings_and_stderr_has_them() -> None:
+    # Benzyl alcohol without its OH, wet CDCl3 (water 1.56, Gottlieb et al. 1997).
+    result = read("--formula", "C7H8O", "--h1", "7.35 (m, 5H), 4.67 (s, 2H), 1.57 (s, 1H)", "--solvent", "CDCl3")
+    assert result.exit_code == 0
+    assert "Warnings     1" in result.stdout and "water in CDCl3" in result.stdout
+    assert result.stderr.startswith("warning: 1H signal at 1.57 ppm") and len(result.stderr.splitlines()) == 1
 
 
 def test_warnings_in_json_and_on_stderr() -> None:

@@ -30,9 +30,10 @@ from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, Problem
 from elucidate.parse.formula import parse_formula
 from elucidate.parse.jcamp import jcamp_c13_rows, jcamp_h1_rows, looks_like_jcamp, read_jcamp
-from elucidate.parse.peaks import PeakList, _short, finish_c13, finish_h1, read_c13_text, read_h1_text
+from elucidate.parse.lexing import short
+from elucidate.parse.peaks import PeakList, finish_c13, finish_h1, read_c13_text, read_h1_text
 from elucidate.parse.solvents import c13_solvent_warnings, h1_solvent_warnings, normalise_solvent
-from elucidate.parse.tables import _role, c13_rows, h1_rows, looks_like_table, row_to_c13, row_to_h1
+from elucidate.parse.tables import c13_rows, column_role, h1_rows, looks_like_table, row_to_c13, row_to_h1
 
 __all__ = [
     "CASE_KEYS",
@@ -40,6 +41,7 @@ __all__ = [
     "load_problem",
     "problem_from_toml",
     "read_peak_file",
+    "read_peak_text",
     "validate_smarts",
 ]
 
@@ -152,9 +154,25 @@ def read_peak_file(path: Path, nucleus: str, formula: Formula | None = None) -> 
     else from the content (``##`` records; a header row of known column names;
     otherwise the text is read like ``--h1``/``--c13`` text).
     """
-    text = _read_text(path, f"{nucleus} file")
-    name = path.name
-    suffix = path.suffix.lower()
+    return read_peak_text(_read_text(path, f"{nucleus} file"), path.name, nucleus, formula)
+
+
+def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None = None) -> PeakList:
+    """Read the contents of a peak file called ``name`` (see :func:`read_peak_file`).
+
+    Parameters
+    ----------
+    text : str
+        File contents.
+    name : str
+        File name: its suffix picks the reader, and messages name it.
+    nucleus : {"1H", "13C"}
+    formula : Formula, optional
+        For scaling relative 1H integrals.
+    """
+    if nucleus not in ("1H", "13C"):
+        raise InputError(f"nucleus must be 1H or 13C, not '{short(str(nucleus))}'")
+    suffix = Path(name).suffix.lower()
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
         doc = read_jcamp(text, name)
         if nucleus == "1H":
@@ -195,7 +213,7 @@ def validate_smarts(patterns: Sequence[str], option: str) -> tuple[str, ...]:
         if not p:
             raise InputError(f"{option} #{i} is empty (expected a SMARTS pattern, e.g. C(=O)O)")
         if _smarts_mol(p) is None:
-            raise InputError(f"{option} #{i}: '{_short(p, 60)}' is not valid SMARTS")
+            raise InputError(f"{option} #{i}: '{short(p, 60)}' is not valid SMARTS")
         out.append(p)
     return tuple(out)
 
@@ -256,7 +274,7 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
     unknown = [k for k in doc if k not in CASE_KEYS]
     if unknown:
         raise InputError(
-            f"{origin}: unknown key '{_short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
+            f"{origin}: unknown key '{short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
         )
     s = _Settings()
     for key in ("name", "description", "formula", "solvent"):
@@ -300,7 +318,7 @@ def _spectrum(value: Any, key: str, base: Path, origin: str) -> _Source:
         raise InputError(f"{where}: give text, \"@file\", or a table with text, file or peaks")
     unknown = [k for k in value if k not in _SPECTRUM_KEYS]
     if unknown:
-        raise InputError(f"{where}: unknown key '{_short(unknown[0])}' (known: {', '.join(_SPECTRUM_KEYS)})")
+        raise InputError(f"{where}: unknown key '{short(unknown[0])}' (known: {', '.join(_SPECTRUM_KEYS)})")
     given = [k for k in _SPECTRUM_KEYS if k in value]
     if len(given) != 1:
         raise InputError(f"{where}: give exactly one of text, file or peaks")
@@ -335,11 +353,11 @@ def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[s
             raise InputError(f"{at}: each peak must be a table such as {{shift = 2.09, mult = \"s\", h = 3}}")
         row: dict[str, str] = {}
         for k, v in peak.items():
-            role = _role(k, nucleus)
+            role = column_role(k, nucleus)
             if role is None:
-                raise InputError(f"{at}: unknown peak key '{_short(k)}'")
+                raise InputError(f"{at}: unknown peak key '{short(k)}'")
             if role in row:
-                raise InputError(f"{at}: '{_short(k)}' repeats the {role} of this peak")
+                raise InputError(f"{at}: '{short(k)}' repeats the {role} of this peak")
             cell = _cell(v, at).strip()
             if cell:
                 row[role] = cell
@@ -411,7 +429,7 @@ def _problem(s: _Settings) -> Problem:
     forbid = validate_smarts(s.forbid, "--forbid")
     both = sorted(set(require) & set(forbid))
     if both:
-        raise InputError(f"SMARTS '{_short(both[0], 60)}' is both required and forbidden")
+        raise InputError(f"SMARTS '{short(both[0], 60)}' is both required and forbidden")
     h1_signals: tuple[H1Signal, ...] = h1.signals
     return Problem(
         formula=formula,

@@ -21,8 +21,9 @@ import re
 from dataclasses import dataclass
 
 from elucidate.errors import InputError
+from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
-from elucidate.parse.peaks import RawC13, RawH1, _OFF_RESONANCE, _short, to_float
+from elucidate.parse.peaks import RawC13, RawH1
 
 __all__ = ["MAX_PEAKS", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
 
@@ -107,8 +108,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
 
 
 def _records(text: str, name: str) -> list[tuple[str, str, int]]:
-    """(normalised label, value, line number) for each ##LABEL= record."""
-    out: list[tuple[str, str, int]] = []
+    """(normalised label, value, line number) for each ##LABEL= record.
+
+    Continuation lines are joined with line-number markers so that messages
+    about a peak can name its own line.
+    """
+    heads: list[tuple[str, int]] = []
+    values: list[list[str]] = []
     for n, line in enumerate(text.lstrip("\ufeff").splitlines(), start=1):
         if "$$" in line:
             line = line[: line.index("$$")]
@@ -116,16 +122,16 @@ def _records(text: str, name: str) -> list[tuple[str, str, int]]:
         if s.startswith("##"):
             m = _LDR.match(s)
             if m is None:
-                raise InputError(f"{name} line {n}: '{_short(s)}' has no '=' (expected ##LABEL=value)")
-            out.append((norm_label(m.group(1)), m.group(2).strip(), n))
-        elif s and out:
-            label, value, start = out[-1]
-            out[-1] = (label, value + "\n" + f"\x00{n}\x00" + s, start)
+                raise InputError(f"{name} line {n}: '{short(s)}' has no '=' (expected ##LABEL=value)")
+            heads.append((norm_label(m.group(1)), n))
+            values.append([m.group(2).strip()])
+        elif s and heads:
+            values[-1].append(f"\x00{n}\x00" + s)
         elif s:
-            raise InputError(f"{name} line {n}: '{_short(s)}' comes before any ##LABEL= record")
-    if not out:
+            raise InputError(f"{name} line {n}: '{short(s)}' comes before any ##LABEL= record")
+    if not heads:
         raise InputError(f"{name}: not a JCAMP-DX file (no ##LABEL= records)")
-    return out
+    return [(label, "\n".join(parts), n) for (label, n), parts in zip(heads, values)]
 
 
 def _blocks(records: list[tuple[str, str, int]]) -> list[list[tuple[str, str, int]]]:
@@ -141,7 +147,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
     """Split a record value into (line number, text) using the markers from _records."""
     out = []
     for i, piece in enumerate(value.split("\n")):
-        m = re.match(r"\x00(\d+)\x00(.*)", piece, re.DOTALL)
+        m = re.match(r"\x00([0-9]+)\x00(.*)", piece, re.DOTALL)
         if m:
             out.append((int(m.group(1)), m.group(2)))
         else:
@@ -150,7 +156,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
 
 
 def _clean(value: str) -> str:
-    return re.sub(r"\x00\d+\x00", "", value).strip()
+    return re.sub(r"\x00[0-9]+\x00", "", value).strip()
 
 
 def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
@@ -158,7 +164,7 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     title = header.get("TITLE", ("", 0))[0]
     datatype = header.get("DATATYPE", ("", 0))[0]
     if datatype and "NMR" not in datatype.upper() and "PEAK" not in datatype.upper():
-        raise InputError(f"{name} line {header['DATATYPE'][1]}: DATA TYPE '{_short(datatype)}' is not NMR data")
+        raise InputError(f"{name} line {header['DATATYPE'][1]}: DATA TYPE '{short(datatype)}' is not NMR data")
     nucleus = None
     if ".OBSERVENUCLEUS" in header:
         raw_nucleus = header[".OBSERVENUCLEUS"][0].replace("^", "").replace(" ", "").upper()
@@ -201,7 +207,7 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     m = _VARLIST.match(first)
     if m is None:
         raise InputError(
-            f"{name} line {first_no}: '{_short(first)}' does not name the columns, e.g. (XY..XY) or (XYM..XYM)"
+            f"{name} line {first_no}: '{short(first)}' does not name the columns, e.g. (XY..XY) or (XYM..XYM)"
         )
     variables = m.group(1).upper()
     if m.group(2) and m.group(2).upper() != variables:
@@ -263,7 +269,7 @@ def _assignment_tuples(lines: list[tuple[int, str]], name: str) -> list[tuple[li
                 i += 1
                 continue
             if s[i] != "(":
-                raise InputError(f"{name} line {n}: '{_short(s[i:])}' is not a (x, y, …) peak entry")
+                raise InputError(f"{name} line {n}: '{short(s[i:])}' is not a (x, y, …) peak entry")
             values: list[str] = []
             buf = ""
             in_text = False
@@ -312,7 +318,7 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
         if p.m:
             mult = normalise_multiplicity("m" if p.m.upper() == "U" else p.m)
             if mult is None:
-                raise InputError(f"{where}: '{_short(p.m)}' is not a multiplicity (S, D, T, Q, M, U)")
+                raise InputError(f"{where}: '{short(p.m)}' is not a multiplicity (S, D, T, Q, M, U)")
             label = mult.label or ("s" if mult.broad else "m")
             broad, apparent = mult.broad, mult.apparent
             if mult.note:
@@ -331,9 +337,9 @@ def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:
         attached = None
         if p.m:
             key = p.m.strip().lower()
-            if key in _OFF_RESONANCE:
-                attached = _OFF_RESONANCE[key]
+            if key in OFF_RESONANCE_H:
+                attached = OFF_RESONANCE_H[key]
             elif key not in ("m", "u"):
-                raise InputError(f"{where}: '{_short(p.m)}' is not a 13C multiplicity (S, D, T, Q, M, U)")
+                raise InputError(f"{where}: '{short(p.m)}' is not a 13C multiplicity (S, D, T, Q, M, U)")
         rows.append(RawC13(p.x, 1, attached, f"{p.x:g}" + (f", {p.m}" if p.m else ""), where))
     return rows

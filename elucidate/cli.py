@@ -386,6 +386,37 @@ MaxStructuresOpt = Annotated[
 ]
 
 
+ReportOpt = Annotated[
+    Optional[Path],
+    typer.Option(
+        "--report",
+        metavar="FILE.html",
+        dir_okay=False,
+        help="Also write one self-contained HTML page (drawings, spectra, evidence per signal) to this file.",
+    ),
+]
+SdfOpt = Annotated[
+    Optional[Path],
+    typer.Option(
+        "--sdf",
+        metavar="FILE",
+        dir_okay=False,
+        help="Also write the ranked candidates (rank, score, deviations as SD properties) to this SD file.",
+    ),
+]
+
+
+def _check_output(path: Path | None, option: str) -> None:
+    """Fail before a long search if an output file cannot be written."""
+    if path is None:
+        return
+    if path.is_dir():
+        raise InputError(f"{option} {path}: is a directory, not a file")
+    parent = path.parent if str(path.parent) else Path(".")
+    if not parent.is_dir():
+        raise InputError(f"{option} {path}: directory '{parent}' does not exist")
+
+
 def _readback(problem: Any) -> str:
     from elucidate.parse.readback import readback_text
 
@@ -492,6 +523,8 @@ def solve_command(
     top: TopOpt = 10,
     time_limit: TimeLimitOpt = None,
     max_structures: MaxStructuresOpt = None,
+    report: ReportOpt = None,
+    sdf: SdfOpt = None,
     json_out: JsonOpt = False,
 ) -> None:
     """Rank every structure consistent with a formula and a 1H (13C) peak list.
@@ -499,18 +532,30 @@ def solve_command(
     A search stopped by --time-limit or --max-structures still exits 0: the
     output says INCOMPLETE prominently and JSON has "complete": false.
     """
+    from elucidate.report import render_solve, stderr_progress, write_html, write_sdf
     from elucidate.solve import solve
 
+    _check_output(report, "--report")
+    _check_output(sdf, "--sdf")
     problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
-    result = solve(problem, top=top, time_limit_s=time_limit, max_structures=max_structures)
+    with stderr_progress() as progress:
+        result = solve(
+            problem, top=top, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+        )
     if not result.complete:
         warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
+    if report is not None:
+        write_html(result, report)
+        typer.echo(f"wrote {report}", err=True)
+    if sdf is not None:
+        write_sdf(result, sdf)
+        typer.echo(f"wrote {sdf}", err=True)
     if json_out:
         doc = result.to_json()
         doc["caution"] = CAUTION
         emit_json(doc)
     else:
-        typer.echo(solve_text(result))
+        render_solve(result)
 
 
 @app.command("explain")
@@ -534,25 +579,39 @@ def explain_command(
     forbid: ForbidOpt = None,
     time_limit: TimeLimitOpt = None,
     max_structures: MaxStructuresOpt = None,
+    report: ReportOpt = None,
+    sdf: SdfOpt = None,
     json_out: JsonOpt = False,
 ) -> None:
     """Say whether one structure fits the data (consistent / poor fit /
     rejected), with its assignment, the reasons, and its rank."""
+    from elucidate.report import render_explain, stderr_progress, write_explain_html, write_explain_sdf
     from elucidate.solve import explain
 
+    _check_output(report, "--report")
+    _check_output(sdf, "--sdf")
     smiles = first
     if second is not None:
         if case is not None:
             raise InputError(f"explain: give the case file once (--case {case} and {first!r})")
         case, smiles = Path(first), second
     problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
-    explanation = explain(problem, smiles, time_limit_s=time_limit, max_structures=max_structures)
+    with stderr_progress() as progress:
+        explanation = explain(
+            problem, smiles, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+        )
+    if report is not None:
+        write_explain_html(explanation, report)
+        typer.echo(f"wrote {report}", err=True)
+    if sdf is not None:
+        write_explain_sdf(explanation, sdf)
+        typer.echo(f"wrote {sdf}", err=True)
     if json_out:
         doc = explanation.to_json()
         doc["caution"] = CAUTION
         emit_json(doc)
     else:
-        typer.echo(explain_text(explanation))
+        render_explain(explanation)
 
 
 

@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 import time
 from dataclasses import dataclass, field
-from typing import Any, Iterator
+from typing import Any, Callable, Iterator
 
 from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
 from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, neighbour_counts, proton_groups
@@ -111,6 +111,7 @@ class _Run:
     hypotheses_complete: bool = True
     levels_run: list[int] = field(default_factory=list)
     full_models: int = 0
+    progress: Callable[[str, int, int | None], None] | None = None
 
 
 # ------------------------------------------------------------------ public
@@ -122,6 +123,7 @@ def solve(
     top: int = 10,
     time_limit_s: float | None = None,
     max_structures: int | None = None,
+    progress: Callable[[str, int, int | None], None] | None = None,
 ) -> SolveResult:
     """Rank every structure allowed by the peak list's hard constraints.
 
@@ -136,6 +138,9 @@ def solve(
         False and the best so far are returned.
     max_structures : int, optional
         Cap on generated structures (same effect as the time limit).
+    progress : callable, optional
+        ``progress(phase, done, total)`` is called as structures are built
+        and scored (see :mod:`elucidate.report.progress`); ``None``: silent.
 
     Returns
     -------
@@ -156,7 +161,7 @@ def solve(
     ('CCOC(C)=O', True)
     """
     _validate(problem, top, time_limit_s, max_structures)
-    run, ranked = _solve(problem, time_limit_s, max_structures)
+    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
     return _result(run, ranked, top)
 
 
@@ -167,6 +172,7 @@ def explain(
     top: int = 10,
     time_limit_s: float | None = None,
     max_structures: int | None = None,
+    progress: Callable[[str, int, int | None], None] | None = None,
 ) -> Explanation:
     """Why one structure is (or is not) a good answer, and where it ranks.
 
@@ -176,7 +182,7 @@ def explain(
         The unknown.
     smiles : str
         The structure the chemist has in mind.
-    top, time_limit_s, max_structures
+    top, time_limit_s, max_structures, progress
         As for :func:`solve` (the ranking needs the full search).
 
     Returns
@@ -191,7 +197,7 @@ def explain(
     """
     _validate(problem, top, time_limit_s, max_structures)
     canonical = _canonical(smiles)
-    return _explain(problem, canonical, top, time_limit_s, max_structures)
+    return _explain(problem, canonical, top, time_limit_s, max_structures, progress)
 
 
 # ------------------------------------------------------------- validation
@@ -224,9 +230,12 @@ def _canonical(smiles: str) -> str:
 # ------------------------------------------------------------------ search
 
 
-def _solve(problem: Problem, time_limit_s: float | None, max_structures: int | None) -> tuple[_Run, list[_Entry]]:
+def _solve(
+    problem: Problem, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+) -> tuple[_Run, list[_Entry]]:
     start = time.monotonic()
     run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures)
+    run.progress = progress
     run.warnings.extend(problem.warnings)
     matches = match_fragments(problem)
     hard = [m for m in matches if m.rule.strength == "hard"]
@@ -357,6 +366,8 @@ def _consume(run: _Run, spec: Any, level_index: int, level: Level) -> None:
         for smi in generate(spec, limits=Limits(max_structures=n, time_limit_s=t), stats=stats):
             count_here += 1
             run.generated += 1
+            if run.progress is not None:
+                run.progress("building structures", run.generated, None)
             if smi in run.entries or smi in run.rejected:
                 continue
             _add(run, smi, level_index)
@@ -416,6 +427,8 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
         kth = done[9] if len(done) >= 10 else math.inf
         if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
             break  # bound-only: cannot enter the top ten
+        if run.progress is not None:
+            run.progress("scoring", k + 1, len(pending))
         fit = assign(run.problem, entry.prediction, weights=run.weights)
         run.full_models += 1
         if not fit.feasible:
@@ -645,7 +658,9 @@ def _formula_of(smiles: str) -> str:
     return CalcMolFormula(Chem.MolFromSmiles(smiles))
 
 
-def _explain(problem: Problem, smiles: str, top: int, time_limit_s: float | None, max_structures: int | None) -> Explanation:
+def _explain(
+    problem: Problem, smiles: str, top: int, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+) -> Explanation:
     from elucidate.predict import predict
 
     formula = _formula_of(smiles)
@@ -665,7 +680,7 @@ def _explain(problem: Problem, smiles: str, top: int, time_limit_s: float | None
         fit = assign(problem, prediction)
         if not fit.feasible:
             reasons = list(fit.reasons) + reasons
-    run, ranked = _solve(problem, time_limit_s, max_structures)
+    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
     rank = next((i + 1 for i, e in enumerate(ranked) if e.smiles == smiles), None)
     total = len(ranked)
     if fit is None or not fit.feasible:

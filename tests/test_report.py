@@ -127,20 +127,27 @@ def test_incomplete_and_empty_results_say_so():
     assert "\n".join(solve_lines(empty_result())).count("No candidate is consistent") == 1
 
 
-def test_explain_lines_for_a_candidate_and_a_rejection():
-    from types import SimpleNamespace
+def _explanation(result, candidate=None, rejection=None, rank=None, verdict="rejected", complete=True):
+    from elucidate.model import Explanation
 
+    smiles = (candidate or rejection).smiles
+    reasons = rejection.reasons if rejection else ()
+    return Explanation(result.problem, smiles, verdict, rank, 9, candidate, rejection, reasons, complete)
+
+
+def test_explain_lines_for_a_candidate_and_a_rejection():
     result = ethyl_acetate_result()
-    cand = result.candidates[0]
-    good = SimpleNamespace(smiles=cand.smiles, verdict="consistent", candidate=cand, rejection=None, rank=1)
-    lines = explain_lines(good, result.problem)
-    assert lines[1] == "CCOC(C)=O: consistent (rank 1)"
+    good = _explanation(result, candidate=result.candidates[0], rank=1, verdict="consistent")
+    lines = explain_lines(good)
+    assert lines[1] == "CCOC(C)=O: consistent, rank 1 of 9"
     assert any(l.split()[:4] == ["a", "4.12", "4.00", "-0.12"] for l in lines)
-    rej = result.rejected[0]
-    bad = SimpleNamespace(smiles=rej.smiles, verdict="rejected", candidate=None, rejection=rej, rank=None)
+    bad = _explanation(result, rejection=result.rejected[0], complete=False)
     out = io.StringIO()
-    render_explain(bad, problem=result.problem, file=out)
-    assert "reason: needs a CH3 singlet" in out.getvalue()
+    render_explain(bad, file=out)
+    text = out.getvalue()
+    assert "C1COCCO1" not in text and "CCCC(=O)O: rejected, not among the 9 structures ranked" in text
+    assert "reason: needs a CH3 singlet" in text
+    assert "Search INCOMPLETE" in text
 
 
 # ---------------------------------------------------------------- progress
@@ -309,20 +316,16 @@ def test_sdf_of_no_candidates_is_empty(tmp_path):
 
 
 def test_explain_page_for_a_candidate_and_a_rejection():
-    from types import SimpleNamespace
-
     from elucidate.report import render_explain_html
 
     result = ethyl_acetate_result()
-    cand = result.candidates[1]
-    good = SimpleNamespace(smiles=cand.smiles, verdict="poor fit", candidate=cand, rejection=None, rank=2)
-    page = _parse(render_explain_html(good, result.problem))
+    good = _explanation(result, candidate=result.candidates[1], rank=2, verdict="poor fit")
+    page = _parse(render_explain_html(good))
     assert page.card_drawings == {"candidate-2": 1}
     text = " ".join("".join(page.text).split())
-    assert "Verdict for CCC(=O)OC: poor fit (rank 2 among the candidates)" in text
-    rej = result.rejected[1]
-    bad = SimpleNamespace(smiles=rej.smiles, verdict="rejected", candidate=None, rejection=rej, rank=None)
-    html = render_explain_html(bad, result.problem)
+    assert "Verdict for CCC(=O)OC: poor fit, rank 2 of 9" in text
+    bad = _explanation(result, rejection=result.rejected[1])
+    html = render_explain_html(bad)
     assert not _URL.search(html)
     page = _parse(html)
     assert page.card_drawings == {}

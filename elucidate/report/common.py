@@ -16,6 +16,7 @@ from elucidate.model import (
     Environment,
     H1Signal,
     Problem,
+    SolveResult,
     multiplicity_pattern,
 )
 
@@ -29,6 +30,7 @@ __all__ = [
     "fmt_delta",
     "fmt_count",
     "readback",
+    "search_summary",
     "largest_deviation",
     "environment_by_index",
     "multiplet_lines",
@@ -124,6 +126,28 @@ def readback(problem: Problem) -> str:
     where = [p for p in (problem.solvent, f"{problem.field_mhz:g} MHz" if problem.field_mhz else None) if p]
     if where:
         text += f" ({', '.join(where)})"
+    return text
+
+
+def search_summary(result: SolveResult) -> str:
+    """What the search did, e.g. ``10 distinct structures built, 9 ranked,
+    1 rejected``; counts the solver did not report are left out."""
+    counts = dict(result.counts)
+    built = counts.get("unique", counts.get("generated"))
+    ranked = counts.get("ranked")
+    n_rej = sum(n for _, n in result.rejected_counts)
+    parts = []
+    if built is not None:
+        parts.append(f"{built} distinct structure{'s' if built != 1 else ''} built")
+    if ranked is not None:
+        parts.append(f"{ranked} ranked")
+    else:
+        n = len(result.candidates)
+        parts.append(f"{n} candidate{'s' if n != 1 else ''}")
+    parts.append(f"{n_rej} rejected")
+    text = ", ".join(parts)
+    if ranked is not None and ranked > len(result.candidates):
+        text += f"; the best {len(result.candidates)} shown"
     return text
 
 

@@ -36,6 +36,7 @@ from elucidate.report.common import (
     observed_lines,
     predicted_lines,
     readback,
+    search_summary,
     signal_colour,
     signal_letter,
     tint,
@@ -108,16 +109,25 @@ def render_explain_html(explanation: Any, problem: Problem | None = None, *, tit
     smiles = getattr(explanation, "smiles", None) or (cand.smiles if cand else rej.smiles if rej else "?")
     verdict = getattr(explanation, "verdict", None) or (cand.verdict if cand else "rejected")
     rank = getattr(explanation, "rank", None)
+    total = getattr(explanation, "total", None)
+    reasons = tuple(getattr(explanation, "reasons", ()) or (rej.reasons if rej is not None else ()))
     result = SolveResult(
         problem=problem,
-        complete=True,
+        complete=bool(getattr(explanation, "complete", True)),
         candidates=(cand,) if cand is not None else (),
-        rejected=(rej,) if rej is not None else (),
+        # the reasons are listed in the verdict box; the rejection section shows the drawing
+        rejected=(rej,) if rej is not None and cand is None else (),
     )
     heading = title or f"{problem.name + ': ' if problem.name else ''}{smiles}"
     summary = f"<b>Verdict for {escape(smiles)}:</b> {escape(verdict)}"
-    if rank is not None:
-        summary += f" (rank {rank} among the candidates)"
+    if rank:
+        summary += f", rank {rank}" + (f" of {total}" if total is not None else "")
+    elif total is not None:
+        summary += f", not among the {total} structures ranked under the hard constraints"
+    if not result.complete:
+        summary += ". <b>Search incomplete:</b> the rank is among the structures seen"
+    if reasons and cand is not None:  # a rejection lists them under its drawing
+        summary += "<ul>" + "".join(f"<li>{escape(r)}</li>" for r in reasons) + "</ul>"
     return _page(result, heading, None, explain=summary)
 
 
@@ -241,19 +251,13 @@ def _caution() -> str:
 
 
 def _status(result: SolveResult) -> str:
-    counts = dict(result.counts)
-    n_rej = sum(n for _, n in result.rejected_counts)
-    bits = []
-    if "generated" in counts:
-        bits.append(f"{counts['generated']} structures built")
-    bits.append(f"{len(result.candidates)} candidate{'s' if len(result.candidates) != 1 else ''}")
-    bits.append(f"{n_rej} rejected")
+    summary = escape(search_summary(result)) + "."
     if result.complete:
-        text = "<b>Search complete:</b> " + escape(", ".join(bits)) + "."
+        text = "<b>Search complete:</b> " + summary
     else:
-        text = "<b>Search incomplete:</b> " + escape(", ".join(bits)) + "."
+        text = "<b>Search incomplete:</b> " + summary
         if result.stopped_by:
-            text += f" Stopped by {escape(result.stopped_by)}; more structures may exist."
+            text += f" Stopped by the {escape(result.stopped_by)}: the answer may be missing."
     extra = []
     for r in result.relaxed:
         extra.append(f"<li>Constraint relaxed: {escape(r)}</li>")
@@ -326,7 +330,7 @@ def _candidate_card(problem: Problem, cand: Candidate) -> str:
     notes_html = "".join(f'<p class="notes">{escape(n)}</p>' for n in cand.notes)
     return (
         f'<section class="card" id="candidate-{cand.rank}">'
-        f'<div class="card-head"><span class="rank">#{cand.rank}</span>'
+        f'<div class="card-head"><span class="rank">{"#" + str(cand.rank) if cand.rank else "not ranked"}</span>'
         f'<span class="smiles">{escape(cand.smiles)}</span>'
         f'<span class="verdict {verdict_cls}">{escape(cand.verdict)}</span>'
         f'<span class="fit">fit {cand.score:.2f} (lower is better)</span></div>'

@@ -13,13 +13,14 @@ from __future__ import annotations
 
 import io
 from pathlib import Path
+from typing import Any
 
 from elucidate import CAUTION
 from elucidate.errors import InputError
 from elucidate.model import Candidate, Problem, SolveResult
 from elucidate.report.common import fmt_ppm, largest_deviation, signal_letter
 
-__all__ = ["write_sdf", "sdf_text", "deviation_lines"]
+__all__ = ["write_sdf", "sdf_text", "deviation_lines", "explain_sdf_text", "write_explain_sdf"]
 
 
 def deviation_lines(problem: Problem, candidate: Candidate) -> list[str]:
@@ -58,47 +59,96 @@ def sdf_text(result: SolveResult, *, top: int | None = None) -> str:
     return _sdf_text(result, top)
 
 
-def _sdf_text(result: SolveResult, top: int | None) -> str:
+def _candidate_props(problem: Problem, cand: Candidate) -> list[tuple[str, str]]:
+    worst = largest_deviation(cand)
+    worst_text = "" if worst is None or worst.observed is None else f"{worst.predicted - worst.observed:+.3f}"
+    return [
+        ("rank", str(cand.rank) if cand.rank else ""),
+        ("score", f"{cand.score:.4f}"),
+        ("verdict", cand.verdict),
+        ("smiles", cand.smiles),
+        ("formula", problem.formula.hill),
+        ("largest_deviation_ppm", worst_text),
+        ("deviations", "\n".join(deviation_lines(problem, cand))),
+        ("notes", "\n".join(cand.notes)),
+    ]
+
+
+def _records(records: list[tuple[str, str, list[tuple[str, str]]]]) -> str:
+    """SD text of (smiles, title, properties) records; empty values are left out."""
     from rdkit import Chem, RDLogger
     from rdkit.Chem import rdDepictor
 
-    problem = result.problem
     buffer = io.StringIO()
     writer = Chem.SDWriter(buffer)
     writer.SetKekulize(True)
-    shown = result.candidates if top is None else result.candidates[:top]
     try:
-        for cand in shown:
+        for smiles, title, props in records:
             RDLogger.DisableLog("rdApp.*")
             try:
-                mol = Chem.MolFromSmiles(cand.smiles)
+                mol = Chem.MolFromSmiles(smiles)
             finally:
                 RDLogger.EnableLog("rdApp.*")
             if mol is None:
-                raise InputError(f"candidate {cand.rank} '{cand.smiles}': not a valid SMILES")
+                raise InputError(f"structure '{smiles}': not a valid SMILES")
             rdDepictor.Compute2DCoords(mol)
-            name = f"{problem.name} " if problem.name else ""
-            mol.SetProp("_Name", f"{name}{problem.formula.hill} candidate {cand.rank}")
-            worst = largest_deviation(cand)
-            worst_text = "" if worst is None or worst.observed is None else f"{worst.predicted - worst.observed:+.3f}"
-            props = [
-                ("rank", str(cand.rank)),
-                ("score", f"{cand.score:.4f}"),
-                ("verdict", cand.verdict),
-                ("smiles", cand.smiles),
-                ("formula", problem.formula.hill),
-                ("largest_deviation_ppm", worst_text),
-                ("deviations", "\n".join(deviation_lines(problem, cand))),
-                ("notes", "\n".join(cand.notes)),
-                ("caution", CAUTION),
-            ]
-            for key, value in props:
+            mol.SetProp("_Name", title)
+            for key, value in [*props, ("caution", CAUTION)]:
                 if value:
                     mol.SetProp(key, value)
             writer.write(mol)
     finally:
         writer.close()
     return buffer.getvalue()
+
+
+def _title(problem: Problem, what: str) -> str:
+    name = f"{problem.name} " if problem.name else ""
+    return f"{name}{problem.formula.hill} {what}"
+
+
+def _sdf_text(result: SolveResult, top: int | None) -> str:
+    problem = result.problem
+    shown = result.candidates if top is None else result.candidates[:top]
+    return _records(
+        [(c.smiles, _title(problem, f"candidate {c.rank}"), _candidate_props(problem, c)) for c in shown]
+    )
+
+
+def explain_sdf_text(explanation: Any) -> str:
+    """One SD record for the structure ``explain`` was asked about: its
+    verdict, rank (if ranked), score and deviations (if it could be
+    assigned) and the reasons."""
+    problem = getattr(explanation, "problem", None)
+    if not isinstance(problem, Problem):
+        raise TypeError("explain_sdf_text needs an Explanation with its problem")
+    cand: Candidate | None = getattr(explanation, "candidate", None)
+    props = _candidate_props(problem, cand) if cand is not None else [
+        ("smiles", explanation.smiles),
+        ("formula", problem.formula.hill),
+    ]
+    props = [(k, v) for k, v in props if k not in ("verdict", "rank")]
+    rank = getattr(explanation, "rank", None)
+    props = [("verdict", explanation.verdict), ("rank", str(rank) if rank else ""), *props]
+    total = getattr(explanation, "total", None)
+    if total is not None:
+        props.append(("ranked_structures", str(total)))
+    props.append(("reasons", "\n".join(getattr(explanation, "reasons", ()))))
+    return _records([(explanation.smiles, _title(problem, f"explain {explanation.verdict}"), props)])
+
+
+def write_explain_sdf(explanation: Any, path: str | Path) -> Path:
+    """Write :func:`explain_sdf_text` to ``path``; :class:`InputError` if it cannot."""
+    return _write(Path(path), explain_sdf_text(explanation))
+
+
+def _write(target: Path, text: str) -> Path:
+    try:
+        with open(target, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+    except OSError as err:
+        raise InputError(f"--sdf {target}: cannot write the file ({err.strerror})") from err
+    return target
 
 
 def write_sdf(result: SolveResult, path: str | Path, *, top: int | None = None) -> Path:
@@ -109,11 +159,4 @@ def write_sdf(result: SolveResult, path: str | Path, *, top: int | None = None) 
     InputError
         If the file cannot be written.
     """
-    text = sdf_text(result, top=top)
-    target = Path(path)
-    try:
-        with open(target, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-    except OSError as err:
-        raise InputError(f"--sdf {target}: cannot write the file ({err.strerror})") from err
-    return target
+    return _write(Path(path), sdf_text(result, top=top))

@@ -20,6 +20,8 @@ from elucidate.report.common import (
     fmt_ppm,
     largest_deviation,
     readback,
+    search_summary,
+    signal_colour,
     signal_letter,
 )
 
@@ -30,18 +32,10 @@ __all__ = ["render_solve", "render_explain", "solve_lines", "explain_lines"]
 
 
 def _status(result: SolveResult) -> str:
-    counts = dict(result.counts)
-    n_cand = len(result.candidates)
-    n_rej = sum(n for _, n in result.rejected_counts)
-    parts = []
-    if "generated" in counts:
-        parts.append(f"{counts['generated']} structures built")
-    parts.append(f"{n_cand} candidate{'s' if n_cand != 1 else ''}")
-    parts.append(f"{n_rej} rejected")
     head = "Search complete" if result.complete else "Search INCOMPLETE"
-    text = f"{head}: {', '.join(parts)}."
+    text = f"{head}: {search_summary(result)}."
     if result.stopped_by:
-        text += f" Stopped by {result.stopped_by}: more structures may exist."
+        text += f" Stopped by the {result.stopped_by}: the answer may be missing."
     return text
 
 
@@ -106,6 +100,11 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
         lines += _align([_CAND_HEAD, *rows], (True, False, True, False, False))
         if top is not None and len(result.candidates) > top:
             lines.append(f"... {len(result.candidates) - top} more (see --json or --report)")
+        best = result.candidates[0]
+        if best.assignments:
+            lines += ["", f"Best candidate, signal by signal: {best.smiles}"]
+            lines += _align(_assignment_rows(best), _ASSIGN_RIGHT)
+            lines += [f"note: {n}" for n in best.notes]
     else:
         lines.append("No candidate is consistent with the data.")
     rej = _rejection_rows(result)
@@ -120,45 +119,58 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
     return lines
 
 
+def _assignment_rows(cand: Candidate) -> list[tuple[str, ...]]:
+    rows = [("signal", "δ obs", "δ pred", "Δ", "mult obs/pred", "nH")]
+    for a in sorted(cand.assignments, key=lambda a: (a.signal is None, a.signal or 0, a.environment)):
+        rows.append(
+            (
+                signal_letter(a.signal) if a.signal is not None else "–",
+                fmt_ppm(a.observed),
+                fmt_ppm(a.predicted),
+                fmt_delta(None if a.observed is None else a.predicted - a.observed),
+                f"{a.multiplicity_observed or '–'}/{a.multiplicity_predicted}",
+                str(a.h_count),
+            )
+        )
+    return rows
+
+
+_ASSIGN_RIGHT = (False, True, True, True, False, True)
+
+
 def explain_lines(explanation: Any, problem: Problem | None = None) -> list[str]:
     """Plain-text rendering of an ``explain`` verdict for one structure.
 
-    ``explanation`` needs ``smiles`` and ``verdict`` and one of ``candidate``
-    (a :class:`Candidate`) or ``rejection`` (a :class:`Rejection`); ``rank``
-    and ``problem`` are used when present.
+    ``explanation`` is an :class:`elucidate.model.Explanation` or anything
+    with ``smiles``, ``verdict`` and ``candidate`` / ``rejection``; ``rank``,
+    ``total``, ``reasons``, ``complete`` and ``problem`` are used when present.
     """
     problem = problem if problem is not None else getattr(explanation, "problem", None)
     cand: Candidate | None = getattr(explanation, "candidate", None)
     rej: Rejection | None = getattr(explanation, "rejection", None)
     smiles = getattr(explanation, "smiles", None) or (cand.smiles if cand else rej.smiles if rej else "?")
     verdict = getattr(explanation, "verdict", None) or (cand.verdict if cand else "rejected")
+    rank = getattr(explanation, "rank", None)
+    total = getattr(explanation, "total", None)
     lines = []
     if problem is not None:
         lines.append(readback(problem))
     head = f"{smiles}: {verdict}"
-    rank = getattr(explanation, "rank", None)
-    if rank is not None:
-        head += f" (rank {rank})"
-    lines += [head, ""]
-    if cand is not None and problem is not None:
-        rows = [("signal", "δ obs", "δ pred", "Δ", "mult obs/pred", "nH")]
-        for a in sorted(cand.assignments, key=lambda a: (a.signal is None, a.signal or 0, a.environment)):
-            letter = signal_letter(a.signal) if a.signal is not None else "–"
-            rows.append(
-                (
-                    letter,
-                    fmt_ppm(a.observed),
-                    fmt_ppm(a.predicted),
-                    fmt_delta(None if a.observed is None else a.predicted - a.observed),
-                    f"{a.multiplicity_observed or '–'}/{a.multiplicity_predicted}",
-                    str(a.h_count),
-                )
-            )
-        lines += _align(rows, (False, True, True, True, False, True))
-        lines.append(f"fit {cand.score:.2f}")
-        lines += [f"note: {n}" for n in cand.notes]
-    if rej is not None:
-        lines += [f"reason: {r}" for r in rej.reasons]
+    if rank:
+        head += f", rank {rank}" + (f" of {total}" if total is not None else "")
+    elif total is not None:
+        head += f", not among the {total} structures ranked under the hard constraints"
+    lines.append(head)
+    if getattr(explanation, "complete", True) is False:
+        lines.append("Search INCOMPLETE: the rank is among the structures seen.")
+    lines.append("")
+    if cand is not None and cand.assignments:
+        lines += _align(_assignment_rows(cand), _ASSIGN_RIGHT)
+        lines.append(f"fit {cand.score:.2f} (lower is better)")
+    reasons = tuple(getattr(explanation, "reasons", ()) or (rej.reasons if rej is not None else ()))
+    lines += [f"reason: {r}" for r in reasons]
+    if cand is not None:
+        lines += [f"note: {n}" for n in cand.notes if n not in reasons]
     lines += ["", f"Caution: {CAUTION}"]
     return lines
 
@@ -237,6 +249,21 @@ def _rich_solve(result: SolveResult, stream: TextIO, top: int | None) -> None:
         console.print(table)
         if top is not None and len(result.candidates) > top:
             console.print(f"... {len(result.candidates) - top} more (see --json or --report)")
+        best = result.candidates[0]
+        if best.assignments:
+            rows = _assignment_rows(best)
+            table = Table(
+                title=f"Best candidate, signal by signal: {best.smiles}", box=box.SIMPLE_HEAD, title_justify="left"
+            )
+            for name, right in zip(rows[0], _ASSIGN_RIGHT):
+                table.add_column(name, justify="right" if right else "left")
+            for row in rows[1:]:
+                letter = row[0]
+                style = signal_colour(ord(letter[0]) - ord("a")) if len(letter) == 1 and letter.isalpha() else ""
+                table.add_row(Text(letter, style=f"bold {style}"), *row[1:])
+            console.print(table)
+            for note in best.notes:
+                console.print(Text(f"note: {note}", style="dim"))
     else:
         console.print(Text("No candidate is consistent with the data.", style="bold red"))
     rej = _rejection_rows(result)

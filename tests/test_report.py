@@ -331,3 +331,17 @@ def test_explain_page_for_a_candidate_and_a_rejection():
     assert page.card_drawings == {}
     assert sum(1 for t, a in page.tags if t == "svg" and a.get("class") == "mol") == 1  # the rejected structure
     assert "no CH3 in the structure" in "".join(page.text)
+
+
+def test_two_halves_of_a_ch2_on_one_signal_make_one_row():
+    from dataclasses import replace
+
+    from elucidate.report.common import table_rows
+
+    result = ethyl_acetate_result()
+    cand = result.candidates[0]
+    och2 = cand.assignments[0]  # the 2H quartet
+    halves = (replace(och2, h_count=1), replace(och2, h_count=1))
+    split = replace(cand, assignments=halves + cand.assignments[1:])
+    rows = table_rows(split)
+    assert [(r.signal, r.h_count) for r in rows] == [(0, 2), (1, 3), (2, 3)]

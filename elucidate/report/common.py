@@ -8,6 +8,7 @@ no I/O, nothing heavy imported.
 from __future__ import annotations
 
 from collections.abc import Iterable
+from dataclasses import replace
 from math import comb
 
 from elucidate.model import (
@@ -32,6 +33,7 @@ __all__ = [
     "readback",
     "search_summary",
     "largest_deviation",
+    "table_rows",
     "environment_by_index",
     "multiplet_lines",
     "observed_lines",
@@ -149,6 +151,24 @@ def search_summary(result: SolveResult) -> str:
     if ranked is not None and ranked > len(result.candidates):
         text += f"; the best {len(result.candidates)} shown"
     return text
+
+
+def table_rows(candidate: Candidate) -> list[Assignment]:
+    """The candidate's assignments as rows for a table: observed signals in
+    order, then what was not observed; two parts of one environment given to
+    the same signal (the two H of a CH2 split by the solver) become one row."""
+    merged: dict[tuple[int, int | None], Assignment] = {}
+    for a in candidate.assignments:
+        key = (a.environment, a.signal)
+        if key in merged:
+            m = merged[key]
+            merged[key] = replace(m, h_count=m.h_count + a.h_count, cost=m.cost + a.cost)
+        else:
+            merged[key] = a
+    return sorted(
+        merged.values(),
+        key=lambda a: (a.signal is None, a.signal if a.signal is not None else 0, a.predicted * -1, a.environment),
+    )
 
 
 def largest_deviation(candidate: Candidate) -> Assignment | None:

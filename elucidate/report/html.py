@@ -38,6 +38,7 @@ from elucidate.report.common import (
     readback,
     search_summary,
     signal_colour,
+    table_rows,
     signal_letter,
     tint,
 )
@@ -352,7 +353,7 @@ def _chip(signal: int | None) -> str:
 
 def _assignment_table(problem: Problem, cand: Candidate, envs: dict[int, Environment]) -> str:
     rows = []
-    order = sorted(cand.assignments, key=lambda a: (a.signal is None, a.signal if a.signal is not None else 0, a.environment))
+    order = table_rows(cand)
     for a in order:
         env = envs.get(a.environment)
         delta = None if a.observed is None else a.predicted - a.observed
@@ -515,7 +516,7 @@ def spectrum_svg(problem: Problem, cand: Candidate | None = None, *, width: int 
     envs = environment_by_index(cand) if cand is not None else {}
     preds: list[tuple[Assignment, float]] = []
     if cand is not None:
-        preds = [(a, a.predicted) for a in cand.assignments]
+        preds = [(a, a.predicted) for a in table_rows(cand)]
     shifts = [s.shift_low for s in problem.h1] + [s.shift_high for s in problem.h1] + [p for _, p in preds]
     lo, hi = _axis_range(shifts)
     left, right, top, bottom = 78, 16, 30, 42

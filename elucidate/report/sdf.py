@@ -18,7 +18,7 @@ from typing import Any
 from elucidate import CAUTION
 from elucidate.errors import InputError
 from elucidate.model import Candidate, Problem, SolveResult
-from elucidate.report.common import fmt_ppm, largest_deviation, signal_letter
+from elucidate.report.common import fmt_ppm, largest_deviation, signal_letter, table_rows
 
 __all__ = ["write_sdf", "sdf_text", "deviation_lines", "explain_sdf_text", "write_explain_sdf"]
 
@@ -28,11 +28,7 @@ def deviation_lines(problem: Problem, candidate: Candidate) -> list[str]:
     ``a 4.12 obs 4.00 pred dev -0.12 q/q 2H`` (ASCII only: SD readers
     differ in what they make of other bytes)."""
     out = []
-    order = sorted(
-        candidate.assignments,
-        key=lambda a: (a.signal is None, a.signal if a.signal is not None else 0, a.environment),
-    )
-    for a in order:
+    for a in table_rows(candidate):
         letter = signal_letter(a.signal) if a.signal is not None else "-"
         delta = None if a.observed is None else a.predicted - a.observed
         out.append(

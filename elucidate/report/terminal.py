@@ -23,6 +23,7 @@ from elucidate.report.common import (
     search_summary,
     signal_colour,
     signal_letter,
+    table_rows,
 )
 
 __all__ = ["render_solve", "render_explain", "solve_lines", "explain_lines"]
@@ -121,7 +122,7 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
 
 def _assignment_rows(cand: Candidate) -> list[tuple[str, ...]]:
     rows = [("signal", "δ obs", "δ pred", "Δ", "mult obs/pred", "nH")]
-    for a in sorted(cand.assignments, key=lambda a: (a.signal is None, a.signal or 0, a.environment)):
+    for a in table_rows(cand):
         rows.append(
             (
                 signal_letter(a.signal) if a.signal is not None else "–",

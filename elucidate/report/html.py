@@ -129,7 +129,8 @@ def render_explain_html(explanation: Any, problem: Problem | None = None, *, tit
         summary += ". <b>Search incomplete:</b> the rank is among the structures seen"
     if reasons and cand is not None:  # a rejection lists them under its drawing
         summary += "<ul>" + "".join(f"<li>{escape(r)}</li>" for r in reasons) + "</ul>"
-    return _page(result, heading, None, explain=summary)
+    cls = "status" if verdict == "consistent" else "status incomplete"
+    return _page(result, heading, None, explain=f'<div class="{cls}">{summary}</div>', shown_notes=reasons)
 
 
 def write_explain_html(explanation: Any, path: str | Path, problem: Problem | None = None, *, title: str | None = None) -> Path:
@@ -207,7 +208,14 @@ footer{color:var(--muted);font-size:12px;border-top:1px solid var(--line);paddin
 """
 
 
-def _page(result: SolveResult, title: str | None, top: int | None, *, explain: str | None = None) -> str:
+def _page(
+    result: SolveResult,
+    title: str | None,
+    top: int | None,
+    *,
+    explain: str | None = None,
+    shown_notes: Sequence[str] = (),
+) -> str:
     problem = result.problem
     heading = title or problem.name or f"Unknown {problem.formula.hill}"
     shown = result.candidates if top is None else result.candidates[:top]
@@ -232,9 +240,9 @@ def _page(result: SolveResult, title: str | None, top: int | None, *, explain: s
     if explain is None:
         parts += [_status(result), _overview(result, shown)]
     else:
-        parts.append(f'<div class="status">{explain}</div>')
+        parts.append(explain)
     for cand in shown:
-        parts.append(_candidate_card(problem, cand))
+        parts.append(_candidate_card(problem, cand, shown_notes))
     parts.append(_rejections(result, explain is not None))
     parts.append(_input_echo(problem))
     parts.append(_caution())
@@ -302,7 +310,7 @@ def _overview(result: SolveResult, shown: Sequence[Candidate]) -> str:
 # ------------------------------------------------------------- candidate
 
 
-def _candidate_card(problem: Problem, cand: Candidate) -> str:
+def _candidate_card(problem: Problem, cand: Candidate, shown_notes: Sequence[str] = ()) -> str:
     envs = environment_by_index(cand)
     atom_signals: dict[int, list[int]] = {}
     for a in cand.assignments:
@@ -328,7 +336,7 @@ def _candidate_card(problem: Problem, cand: Candidate) -> str:
     if unassigned:
         legend += f'<li><span class="chip" style="background:{UNASSIGNED_COLOUR}">–</span> not observed</li>'
     verdict_cls = "consistent" if cand.verdict == "consistent" else "poor"
-    notes_html = "".join(f'<p class="notes">{escape(n)}</p>' for n in cand.notes)
+    notes_html = "".join(f'<p class="notes">{escape(n)}</p>' for n in cand.notes if n not in shown_notes)
     return (
         f'<section class="card" id="candidate-{cand.rank}">'
         f'<div class="card-head"><span class="rank">{"#" + str(cand.rank) if cand.rank else "not ranked"}</span>'

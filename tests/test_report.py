@@ -345,3 +345,18 @@ def test_two_halves_of_a_ch2_on_one_signal_make_one_row():
     split = replace(cand, assignments=halves + cand.assignments[1:])
     rows = table_rows(split)
     assert [(r.signal, r.h_count) for r in rows] == [(0, 2), (1, 3), (2, 3)]
+
+
+def test_candidate_without_assignments_or_prediction_still_renders():
+    from dataclasses import replace
+
+    result = ethyl_acetate_result()
+    bare = replace(result.candidates[1], assignments=(), prediction=None, notes=("ranked by its cheap bound only",))
+    result = replace(result, candidates=(result.candidates[0], bare))
+    html = render_html(result)
+    page = _parse(html)
+    assert page.card_drawings == {"candidate-1": 1, "candidate-2": 1}
+    assert "ranked by its cheap bound only" in html
+    text = "\n".join(solve_lines(result))
+    assert "   2  CCC(=O)OC  3.53  poor fit    –" in text
+    assert "a 4.12" not in sdf_text(result).split("$$$$")[1]  # no deviations to list

@@ -78,8 +78,20 @@ def _run(args: list[str], tmp_path: Path) -> subprocess.CompletedProcess:
     return subprocess.run(command, capture_output=True, text=True, timeout=120, check=False)
 
 
-@pytest.mark.parametrize("make", [ethyl_acetate_result, ethyl_benzoate_result])
+def _solved_u014():
+    """The solver's own result for the demo case (real drawings of real output)."""
+    from pathlib import Path
+
+    from elucidate.parse import load_problem
+    from elucidate.solve import solve
+
+    case = Path(__file__).resolve().parents[1] / "cases" / "u014.toml"
+    return solve(load_problem(case), top=5)
+
+
+@pytest.mark.parametrize("make", [ethyl_acetate_result, ethyl_benzoate_result, _solved_u014])
 def test_report_renders_in_headless_chromium(make, tmp_path):
+    _chromium()  # skip before any work when there is no browser
     result = make()
     html = render_html(result)
     probed = html.replace("<head>", "<head>\n" + _PROBE, 1)

@@ -70,6 +70,7 @@ def _run(args: list[str], tmp_path: Path) -> subprocess.CompletedProcess:
         "--disable-background-networking",
         "--disable-component-update",
         "--disable-sync",
+        "--disable-dev-shm-usage",
         f"--user-data-dir={profile}",
         "--enable-logging=stderr",
         "--v=0",

@@ -159,6 +159,191 @@ def read_command(
 # ------------------------------------------------------- isomers (generate)
 
 
+def _formula_arg(text: str):  # type: ignore[no-untyped-def]
+    """Parse FORMULA with the parse stage when it is there, else a small local reader."""
+    try:
+        from elucidate.parse import parse_formula  # type: ignore[attr-defined]
+    except ImportError:
+        parse_formula = _read_formula
+    return parse_formula(text)
+
+
+def _read_formula(text: str):  # type: ignore[no-untyped-def]
+    # Minimal private reader, to be replaced by elucidate.parse.parse_formula.
+    import re
+
+    from elucidate.model import ELEMENTS, Formula
+
+    compact = text.replace(" ", "")
+    counts: dict[str, int] = {}
+    pos = 0
+    for m in re.finditer(r"([A-Z][a-z]?)(\d*)", compact):
+        if m.start() != pos:
+            raise InputError(f"formula {text!r}: cannot read {compact[pos:m.start()]!r} at position {pos + 1}")
+        el, num = m.group(1), m.group(2)
+        if el not in ELEMENTS:
+            raise InputError(f"formula {text!r}: unknown element {el!r} at position {m.start() + 1}")
+        counts[el] = counts.get(el, 0) + (int(num) if num else 1)
+        pos = m.end()
+    if pos != len(compact) or not counts:
+        raise InputError(f"formula {text!r}: cannot read {compact[pos:]!r} at position {pos + 1}")
+    order = ["C", "H"] + sorted(el for el in counts if el not in ("C", "H"))
+    f = Formula(tuple((el, counts[el]) for el in order if counts.get(el)))
+    if f.dou_twice < 0 or f.dou_twice % 2:
+        raise InputError(f"formula {text!r}: degree of unsaturation {f.dou} is not a whole number >= 0")
+    return f
+
+
+@app.command()
+@user_errors
+def isomers(
+    formula: Annotated[str, typer.Argument(help="Molecular formula, e.g. C8H10.")],
+    count_only: Annotated[bool, typer.Option("--count", help="Print only the number of structures.")] = False,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    max_structures: Annotated[
+        Optional[int], typer.Option("--max-structures", help="Stop after N structures.", min=1)
+    ] = None,
+    time_limit: Annotated[
+        Optional[float], typer.Option("--time-limit", help="Stop after S seconds.", min=0.0)
+    ] = None,
+    workers: Annotated[int, typer.Option("--workers", help="Processes of a local pool.", min=1)] = 1,
+    hypervalent_s: Annotated[bool, typer.Option("--hypervalent-s", help="Allow S(IV) and S(VI).")] = False,
+    pentavalent_p: Annotated[bool, typer.Option("--pentavalent-p", help="Allow P(V).")] = False,
+    charge_separated: Annotated[
+        bool, typer.Option("--charge-separated", help="Allow nitro groups and N-oxides as N+-O-.")
+    ] = False,
+    no_small_rings: Annotated[bool, typer.Option("--no-small-rings", help="No 3- or 4-membered rings.")] = False,
+    no_cumulenes: Annotated[
+        bool, typer.Option("--no-cumulenes", help="No carbon with two double bonds (allenes, ketenes ...).")
+    ] = False,
+    no_hetero_hetero: Annotated[
+        bool, typer.Option("--no-hetero-hetero", help="No single bond between two heteroatoms.")
+    ] = False,
+    min_ring_triple: Annotated[
+        int, typer.Option("--min-ring-triple", help="Triple bonds only in rings of at least this size (0: any).", min=0)
+    ] = 0,
+    max_ring_size: Annotated[
+        Optional[int], typer.Option("--max-ring-size", help="Largest ring size allowed.", min=3)
+    ] = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Every constitutional isomer of FORMULA, once each, as canonical SMILES (one per line).
+
+    Connected, neutral, closed-shell constitutions without stereo; valences
+    C 4, N 3, O 2, S 2, halogens 1, Si 4, P 3; bond orders 1-3. Kekulé forms
+    of one aromatic compound are one structure.
+    """
+    import time
+
+    from elucidate.errors import LimitReached
+    from elucidate.generate import Limits, Options, Spec, Stats, count, generate
+    from elucidate.generate.isomers import parts_smiles, validate_spec
+
+    spec = Spec(
+        formula=_formula_arg(formula),
+        require=tuple(require or ()),
+        forbid=tuple(forbid or ()),
+        options=Options(
+            hypervalent_s=hypervalent_s,
+            pentavalent_p=pentavalent_p,
+            charge_separated=charge_separated,
+            no_small_rings=no_small_rings,
+            no_cumulenes=no_cumulenes,
+            no_hetero_hetero=no_hetero_hetero,
+            min_ring_triple=min_ring_triple,
+            max_ring_size=max_ring_size,
+        ),
+    )
+    validate_spec(spec)
+    limits = Limits(max_structures=max_structures, time_limit_s=time_limit)
+    stats = Stats()
+    progress = _Progress()
+    smiles: list[str] = []
+    if count_only:
+        n = count(spec, limits=limits, workers=workers, stats=stats)
+    elif workers > 1:
+        from concurrent.futures import ProcessPoolExecutor
+
+        nparts = workers * 8
+        n = 0
+        with ProcessPoolExecutor(max_workers=workers) as pool:
+            args = [(spec, limits, (i, nparts)) for i in range(nparts)]
+            for part, st in pool.map(parts_smiles, args):
+                stats.add(st)
+                for s in part:
+                    if max_structures is not None and n >= max_structures:
+                        stats.stopped_by = "max_structures"
+                        break
+                    n += 1
+                    if json_out:
+                        smiles.append(s)
+                    else:
+                        typer.echo(s)
+                    progress.tick(n)
+    else:
+        n = 0
+        try:
+            for s in generate(spec, limits=limits, stats=stats):
+                n += 1
+                if json_out:
+                    smiles.append(s)
+                else:
+                    typer.echo(s)
+                progress.tick(n)
+        except LimitReached:
+            pass
+    progress.done()
+    if json_out:
+        doc: dict[str, Any] = {
+            "formula": spec.formula.hill,
+            "count": n,
+            "complete": stats.stopped_by is None,
+            "stopped_by": stats.stopped_by,
+            "caution": CAUTION,
+        }
+        if not count_only:
+            doc["smiles"] = smiles
+        emit_json(doc)
+    elif count_only:
+        typer.echo(str(n))
+    if stats.stopped_by:
+        what = "structure limit" if stats.stopped_by == "max_structures" else "time limit"
+        typer.echo(f"stopped: {what} reached after {n} structures; the list is incomplete", err=True)
+        raise typer.Exit(EXIT_LIMIT)
+    _ = time
+
+
+class _Progress:
+    """A structure counter on stderr, shown only for runs longer than a second."""
+
+    def __init__(self) -> None:
+        import time
+
+        self._t0 = time.monotonic()
+        self._shown = False
+        self._next = 0.0
+        self._tty = sys.stderr.isatty()
+
+    def tick(self, n: int) -> None:
+        if not self._tty or n % 1000:
+            return
+        import time
+
+        now = time.monotonic() - self._t0
+        if now > 1.0 and now > self._next:
+            sys.stderr.write(f"\r{n} structures ...")
+            sys.stderr.flush()
+            self._shown = True
+            self._next = now + 0.5
+
+    def done(self) -> None:
+        if self._shown:
+            sys.stderr.write("\r" + " " * 40 + "\r")
+            sys.stderr.flush()
+
+
+
 # ---------------------------------------------------------- predict (predict)
 
 

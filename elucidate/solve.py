@@ -24,6 +24,7 @@ How the pieces fit (see docs/solve-dev.md):
 
 from __future__ import annotations
 
+import functools
 import math
 import time
 from dataclasses import dataclass, field
@@ -270,7 +271,7 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
     from elucidate.generate import AtomSpec, FragmentSpec, Spec
 
     if level.margin is None:
-        return [Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid))], True
+        return [Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem))], True
     if level.margin not in cache:
         cache[level.margin] = proton_groups(problem, margin=level.margin)
         for w in cache[level.margin].warnings:
@@ -285,25 +286,63 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
         bare = dict(h.bare)
         frags = []
         ok = True
+        require = list(problem.require)
         if level.hard_fragments:
             for match in hard:
                 carved = _carve(groups, bare, match)
                 if carved is None:
                     ok = False
                     break
-                groups, bare, frag = carved
-                frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
+                if _generator_takes_fragments():
+                    groups, bare, frag = carved
+                    frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
+                else:
+                    require.append(_fragment_smarts(match.rule.smiles))
         if not ok:
             continue
         atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
         atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
-        spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(problem.require), tuple(problem.forbid))
+        spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(require), tuple(problem.forbid),
+                    _options(problem))
         key = _spec_key(spec)
         if key in seen:
             continue
         seen.add(key)
         specs.append(spec)
     return specs, hset.complete
+
+
+def _options(problem: Problem) -> Any:
+    """Generator switches the formula calls for: nitro groups and N-oxides
+    when N and O are present, S(IV/VI) with S, P(V) with P."""
+    from elucidate.generate import Options
+
+    f = problem.formula
+    return Options(
+        hypervalent_s=f["S"] > 0 and f["O"] > 0,
+        pentavalent_p=f["P"] > 0,
+        charge_separated=f["N"] > 0 and f["O"] >= 2,
+    )
+
+
+@functools.cache
+def _generator_takes_fragments() -> bool:
+    """Whether the generator places fragments as super-atoms (else hard
+    fragments go in as required substructures, with the same result)."""
+    from elucidate.generate import AtomSpec, FragmentSpec, Spec, generate
+    from elucidate.model import Formula
+
+    spec = Spec(Formula((("C", 2), ("H", 6))), (AtomSpec("C", 3),), (FragmentSpec("*C"),))
+    try:
+        return list(generate(spec)) == ["CC"]
+    except InputError:
+        return False
+
+
+def _fragment_smarts(smiles: str) -> str:
+    from rdkit import Chem
+
+    return Chem.MolToSmarts(_fragment_query(smiles))
 
 
 def _label(g: Group, problem: Problem) -> str:

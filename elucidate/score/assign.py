@@ -23,6 +23,7 @@ within its prediction uncertainty adds less than 1.
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass, field
 
@@ -44,6 +45,8 @@ class Weights:
     overlap_multiplet: float = 0.25
     split_ch2: float = 0.6
     split_ch2_diastereotopic: float = 0.2
+    split_equivalent: float = 1.0  # topologically equivalent groups seen apart
+    exchangeable_sharp: float = 1.0  # OH/NH as a sharp line is less usual
     not_observed: float = 0.3
     integral_per_h: float = 1.5
     min_uncertainty: float = 0.1
@@ -115,11 +118,61 @@ def _pair_cost(env: Environment, s: H1Signal, w: Weights) -> float:
     u = max(env.uncertainty, w.min_uncertainty)
     z = abs(_shift_dev(env, s)) / u
     shape, steps = _mult_steps(env, s)
-    return z + w.pattern_shape * shape + w.multiplicity_step * steps
+    sharp = w.exchangeable_sharp if env.exchangeable and not s.broad else 0.0
+    return z + w.pattern_shape * shape + w.multiplicity_step * steps + sharp
 
 
-def _splittable(env: Environment) -> bool:
-    return len(env.atoms) == 1 and env.h_count == 2 and not env.exchangeable
+def _units(env: Environment, smiles: str = "") -> tuple[int, int]:
+    """(H per unit, number of units) an environment may be cut into.
+
+    A CH2 on one carbon may show its two H apart (diastereotopic or =CH2);
+    topologically equivalent groups may show apart when rotation is slow
+    or E/Z differ (the two N-CH3 of an amide, the two CH3 of an
+    isopropylidene): one unit per atom.  Exchangeable H stay whole.
+    """
+    if env.exchangeable:
+        return env.h_count, 1
+    if len(env.atoms) == 1 and env.h_count == 2:
+        return 1, 2
+    k = len(env.atoms)
+    if k == 2 and env.h_count % 2 == 0 and _apart(smiles, env.atoms):
+        return env.h_count // 2, 2
+    return env.h_count, 1
+
+
+@functools.lru_cache(maxsize=4096)
+def _apart(smiles: str, atoms: tuple[int, ...]) -> bool:
+    """Whether two topologically equivalent groups may still show apart:
+    both on one alkene carbon (E/Z to the other end) or on an amide N
+    (slow C–N rotation) — common practice."""
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles) if smiles else None
+    if mol is None or max(atoms) >= mol.GetNumAtoms():
+        return False
+    a, b = (mol.GetAtomWithIdx(i) for i in atoms)
+    common = {n.GetIdx() for n in a.GetNeighbors()} & {n.GetIdx() for n in b.GetNeighbors()}
+    for x in (mol.GetAtomWithIdx(i) for i in common):
+        for bond in x.GetBonds():
+            other = bond.GetOtherAtom(x)
+            if x.GetSymbol() == "C" and bond.GetBondType() == Chem.BondType.DOUBLE and other.GetSymbol() == "C":
+                return True
+            if x.GetSymbol() == "N" and other.GetSymbol() == "C" and other.GetIdx() not in atoms and any(
+                bb.GetBondType() == Chem.BondType.DOUBLE and bb.GetOtherAtom(other).GetSymbol() in ("O", "S")
+                for bb in other.GetBonds()
+            ):
+                return True
+    return False
+
+
+def _splittable(env: Environment, smiles: str = "") -> bool:
+    return _units(env, smiles)[1] > 1
+
+
+def _split_penalty(env: Environment, w: Weights) -> float:
+    if len(env.atoms) == 1:
+        return w.split_ch2_diastereotopic if env.diastereotopic else w.split_ch2
+    return w.split_equivalent
 
 
 # ------------------------------------------------------------ quick bound
@@ -142,9 +195,9 @@ def quick_bound(problem: Problem, prediction: Prediction, weights: Weights = Wei
     for e in envs:
         if e.exchangeable:
             continue
-        if e.h_count > largest and not (_splittable(e) and largest >= 1):
+        if _units(e, prediction.smiles)[0] > largest:
             return math.inf, rs.too_large(e, largest)
-    units = sum(2 if _splittable(e) else 1 for e in envs)
+    units = sum(_units(e, prediction.smiles)[1] for e in envs)
     if units < len(signals):
         return math.inf, rs.too_few_environments(len(envs), len(signals))
     fixed = sum(e.h_count for e in envs if not e.exchangeable)
@@ -226,9 +279,8 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
     h_at = [[] for _ in range(n_s)]
     pair_cost: dict[tuple[int, int], float] = {}
     for ei, e in enumerate(envs):
-        split = _splittable(e)
-        per_unit = 1 if split else e.h_count
-        n_units = 2 if split else 1
+        per_unit, n_units = _units(e, prediction.smiles)
+        split = n_units > 1
         row = []
         for i, s in enumerate(signals):
             if per_unit > caps[i][1]:
@@ -250,19 +302,17 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
                 return Fit(False, math.inf, "rejected", reasons=(rs.too_large(e, max(c[1] for c in caps)),))
             m.add(sum(row) == n_units)
         if split:
-            # split: units at two different signals
-            whole = []
+            # cost per extra signal the units spread over
+            used = []
             for i in range(n_s):
                 if (ei, i) in units:
-                    b = m.new_bool_var(f"whole{ei}_{i}")
-                    m.add(units[ei, i] == 2).only_enforce_if(b)
-                    m.add(units[ei, i] <= 1).only_enforce_if(~b)
-                    whole.append(b)
-            is_split = m.new_bool_var(f"split{ei}")
-            m.add(sum(whole) == 0).only_enforce_if(is_split)
-            m.add(sum(whole) == 1).only_enforce_if(~is_split)
-            pen = w.split_ch2_diastereotopic if e.diastereotopic else w.split_ch2
-            cost_terms.append(round(_SCALE * pen) * is_split)
+                    b = m.new_bool_var(f"used{ei}_{i}")
+                    m.add(units[ei, i] >= 1).only_enforce_if(b)
+                    m.add(units[ei, i] == 0).only_enforce_if(~b)
+                    used.append(b)
+            spread = m.new_int_var(0, n_units, f"spread{ei}")
+            m.add(spread >= sum(used) - 1)
+            cost_terms.append(round(_SCALE * _split_penalty(e, w)) * spread)
     # integrals, each switchable by an assumption literal
     assumptions = []
     for i, s in enumerate(signals):
@@ -324,7 +374,7 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
                                           round(w.not_observed, 4)))
             notes.append(f"{e.h_count}H {e.label or 'exchangeable H'} predicted near {e.shift:.1f} ppm: not observed (exchange)")
             continue
-        per_unit = e.h_count // (2 if _splittable(e) else 1)
+        per_unit = _units(e, prediction.smiles)[0]
         for i, k in placed:
             s = signals[i]
             dev = _shift_dev(e, s)
@@ -340,10 +390,11 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
                 notes.append(rs.shift_note(e, s, round(s.h_count), dev))
             if steps > w.consistent_mult_steps - 1 and steps:
                 notes.append(rs.multiplicity_note(e, s, round(s.h_count)))
-        if len(placed) == 2:
+        if len(placed) >= 2:
+            what = "its two H" if len(e.atoms) == 1 else "its equivalent groups"
             notes.append(
-                f"{e.label or 'CH2'}: its two H read as two signals "
-                f"({signals[placed[0][0]].shift:.2f} and {signals[placed[1][0]].shift:.2f} ppm)"
+                f"{e.label or 'CH2'}: {what} read as {len(placed)} signals ("
+                + ", ".join(f"{signals[i].shift:.2f}" for i, _ in placed) + " ppm)"
             )
     for i, s in enumerate(signals):
         got = sum(a.h_count for a in assignments if a.signal == i)
@@ -384,6 +435,12 @@ def carbon_cost(problem: Problem, prediction: Prediction, w: Weights = Weights()
     pred = sorted(prediction.carbons, key=lambda c: (-c.shift, c.atoms))
     if not obs or not pred:
         return 0.0, [], False
+    if len(pred) < len(obs):
+        # equivalent carbons that may show apart (amide N-CH3, E/Z CH3) count twice
+        pred = sorted(
+            [c for c in pred for _ in range(2 if len(c.atoms) == 2 and _apart(prediction.smiles, c.atoms) else 1)],
+            key=lambda c: (-c.shift, c.atoms),
+        )
     notes: list[str] = []
     bad = False
     n, k = len(pred), len(obs)

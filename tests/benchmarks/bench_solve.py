@@ -27,9 +27,12 @@ DATA = ROOT / "tests" / "benchmarks" / "data" / "unknowns.toml"
 
 
 def canonical(smiles: str) -> str:
+    """Canonical constitution: stereo dropped (solve ranks constitutions)."""
     from rdkit import Chem
 
-    return Chem.MolToSmiles(Chem.MolFromSmiles(smiles))
+    mol = Chem.MolFromSmiles(smiles)
+    Chem.RemoveStereochemistry(mol)
+    return Chem.MolToSmiles(mol)
 
 
 def main(argv: list[str] | None = None) -> int:

@@ -21,7 +21,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass, field
-from typing import Sequence
+from typing import Any, Sequence
 
 from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, multiplicity_pattern
@@ -126,7 +126,7 @@ class RawC13:
 class PeakList:
     """Result of reading a peak list: signals, warnings, and what the header said."""
 
-    signals: tuple
+    signals: tuple[Any, ...]
     warnings: tuple[str, ...] = ()
     field_mhz: float | None = None
     solvent: str | None = None
@@ -192,7 +192,7 @@ def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
     start, field_mhz, solvent, nucleus = _header(text, "1H list")
     if nucleus == "C":
         raise InputError("1H list: the header says 13C NMR; give a 13C list with --c13 (or c13 =)")
-    raws = [_h1_signal(text, chunk, pos) for chunk, pos in _split_top(text, start, "1H list")]
+    raws = [_h1_signal(chunk, pos) for chunk, pos in _split_top(text, start, "1H list")]
     if not raws:
         raise InputError("1H list is empty: no signals found (expected e.g. '7.26 (s, 5H)')")
     signals, warnings = finish_h1(raws, formula)
@@ -208,7 +208,7 @@ def read_c13_text(text: str) -> PeakList:
         raise InputError("13C list: the header says 1H NMR; give a 1H list with --h1 (or h1 =)")
     raws: list[RawC13] = []
     for chunk, pos in _split_top(text, start, "13C list"):
-        raws.extend(_c13_chunk(text, chunk, pos))
+        raws.extend(_c13_chunk(chunk, pos))
     if not raws:
         raise InputError("13C list is empty: no shifts found (expected e.g. '171.1, 60.4, 21.0')")
     signals, warnings = finish_c13(raws)
@@ -226,7 +226,7 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
     for raw in raws:
         _check_h1_raw(raw)
         warnings.extend(raw.notes)
-    counts, scale_warnings = _h_counts(raws, formula)
+    counts, scale_warnings, total_stated = _h_counts(raws, formula)
     warnings.extend(scale_warnings)
     signals = []
     for raw, count in zip(raws, counts):
@@ -246,12 +246,12 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
                 text=raw.text,
             )
         )
-        warnings.extend(_multiplicity_warnings(signals[-1], raw.where))
+        warnings.extend(_multiplicity_warnings(signals[-1]))
     signals.sort(key=lambda s: -s.shift)  # stable: ties keep the written order
     if formula is not None:
         total = sum(s.h_count for s in signals)
         n_h = formula["H"]
-        if abs(total - n_h) > 0.01 and not any("scaled" in w for w in scale_warnings):
+        if abs(total - n_h) > 0.01 and not total_stated:
             if total < n_h:
                 why = "missing exchangeable OH/NH, overlapping signals or an integral too low"
             else:
@@ -347,7 +347,8 @@ def _split_top(text: str, start: int, what: str) -> list[tuple[str, int]]:
     if depth:
         pos = opened[-1]
         raise InputError(
-            f"{what}: '(' at position {pos + 1} is never closed ('{short(text[pos:])}' — missing ')')"
+            f"{what}: '{text[pos]}' at position {pos + 1} is never closed ('{short(text[pos:])}' — "
+            f"missing '{')' if text[pos] == '(' else ']'}')"
         )
     chunks.append((text[begin:], begin))
     out = []
@@ -416,7 +417,7 @@ def _tail_check(chunk: str, i: int, pos: int, what: str) -> None:
     )
 
 
-def _h1_signal(text: str, chunk: str, pos: int) -> RawH1:
+def _h1_signal(chunk: str, pos: int) -> RawH1:
     what = "1H list"
     a, b, i = read_shift(chunk, pos, what)
     body, body_pos, i = _paren_body(chunk, i, pos, what)
@@ -537,7 +538,7 @@ def _check_h1_raw(raw: RawH1) -> None:
             raise InputError(f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)")
 
 
-def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
+def _multiplicity_warnings(sig: H1Signal) -> list[str]:
     out = []
     if sig.multiplicity == "s" and sig.couplings:
         out.append(f"1H signal at {sig.shift:g} ppm is a singlet but lists J values")
@@ -553,14 +554,18 @@ def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
 # ------------------------------------------------------------- integrals
 
 
-def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str]]:
-    """H per signal: as written, or relative integrals scaled to the formula."""
+def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str], bool]:
+    """H per signal: as written, or relative integrals scaled to the formula.
+
+    The flag is True when a warning already states how the total compares
+    with the formula (the integrals were rescaled).
+    """
     values = [float(r.integral) for r in raws]
     relative = any(not r.absolute for r in raws) or any(abs(v - round(v)) > 0.05 for v in values)
     if not relative:
-        return values, []
+        return values, [], False
     if formula is None:
-        return values, ["1H integrals look relative and no formula was given: H counts left as written"]
+        return values, ["1H integrals look relative and no formula was given: H counts left as written"], False
     n_h = formula["H"]
     if n_h == 0:
         raise InputError(f"formula {formula.hill} has no H, but a 1H peak list was given")
@@ -576,7 +581,7 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
         if all(round(x) >= 1 and abs(x - round(x)) <= INTEGER_TOLERANCE for x in scaled):
             counts = [float(round(x)) for x in scaled]
             if abs(factor - 1) < 1e-9:
-                return counts, []
+                return counts, [], False
             msg = (
                 f"relative 1H integrals ({shown}) scaled ×{factor:.3g} to whole H counts "
                 f"totalling {target} H"
@@ -586,19 +591,19 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
                     f"; {formula.hill} has {n_h} H, so {n_h - target} H are not seen "
                     "(exchangeable OH/NH?)"
                 )
-            return counts, [msg]
+            return counts, [msg], True
     factor = n_h / total
     counts = [round(v * factor, 2) for v in values]
     return counts, [
         f"relative 1H integrals ({shown}) do not scale to whole numbers of H; scaled ×{factor:.3g} "
         f"to the {n_h} H of {formula.hill} as {', '.join(f'{c:g}' for c in counts[:6])}"
-    ]
+    ], True
 
 
 # ------------------------------------------------------------------- 13C
 
 
-def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
+def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
     """One comma-separated chunk: one or more ``shift [(details)]`` separated by spaces."""
     out = []
     i = 0

@@ -61,7 +61,7 @@ def to_float(token: str, what: str, where: str) -> float:
 
 
 def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
-    """Read ``[δ] shift [– shift] [ppm]`` at the start of ``chunk``.
+    """Read ``[δ] [~|ca.] shift [– shift] [ppm]`` at the start of ``chunk``.
 
     Parameters
     ----------
@@ -81,6 +81,9 @@ def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
     d = re.match(r"(?:δ|delta)\s*[HC]?\s*[=:]?\s*", chunk, re.IGNORECASE)
     if d:
         i = d.end()
+    about = re.match(r"(?:~|≈|ca\.?|approx\.?|c\.)\s*", chunk[i:], re.IGNORECASE)
+    if about:
+        i += about.end()
     m = NUMBER_RE.match(chunk, i)
     if m is None:
         token = re.match(r"[^\s(,;]*", chunk[i:]).group(0) or chunk[i : i + 1]  # type: ignore[union-attr]

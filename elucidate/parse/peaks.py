@@ -71,7 +71,8 @@ _INTEGRAL = re.compile(r"(" + NUMBER + r"(?:[eE][+\-]?[0-9]+)?)\s*H(?:'?s)?", re
 _HZ_NUMBER = re.compile(r"(" + NUMBER + r")\s*Hz", re.IGNORECASE)
 _DELTA = r"(?:δ|delta|d(?=\s*[=:]))\s*[HC]?\s*(?:\(\s*ppm\s*\)|/\s*ppm|,?\s*ppm)?\s*[:=]?"
 _HEADER = re.compile(
-    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*[-‐ ]?\s*NMR\b\s*"
+    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*(?:\{\s*(?:1|¹)\s*H\s*\})?"
+    r"\s*[-‐ ]?\s*NMR\b\s*"
     r"(?:spectrum\s*)?(?:\((?P<inner>[^()]*)\))?\s*[:,]?\s*(?:" + _DELTA + r")?",
     re.IGNORECASE,
 )
@@ -79,6 +80,12 @@ _DELTA_ONLY = re.compile(r"\s*" + _DELTA, re.IGNORECASE)
 # "δH (400 MHz; CDCl3) 7.30 (5 H, m)": the header without "NMR"
 _DELTA_HEADER = re.compile(
     r"\s*(?:δ|delta)\s*(?P<nucleus>[HC])?\s*\((?P<inner>[^()]*)\)\s*[:,]?\s*(?:ppm\b)?\s*[:=]?",
+    re.IGNORECASE,
+)
+# Where a pasted characterisation paragraph moves on to other data.
+_OTHER_DATA = re.compile(
+    r"(?:1\s*H|¹\s*H|13\s*C|¹³\s*C|19\s*F|¹⁹\s*F|31\s*P|³¹\s*P|29\s*Si)\s*(?:\{[^}]*\})?\s*[-‐ ]?\s*NMR\b"
+    r"|(?:HRMS|HR-MS|LRMS|MS|IR|FTIR|FT-IR|UV|Anal\.?|Elemental analysis|m\.\s*p\.|mp|Rf|R_f)\b",
     re.IGNORECASE,
 )
 _MHZ = re.compile(r"(" + NUMBER + r")\s*MHz", re.IGNORECASE)
@@ -192,11 +199,12 @@ def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
     start, field_mhz, solvent, nucleus = _header(text, "1H list")
     if nucleus == "C":
         raise InputError("1H list: the header says 13C NMR; give a 13C list with --c13 (or c13 =)")
-    raws = [_h1_signal(chunk, pos) for chunk, pos in _split_top(text, start, "1H list")]
+    chunks, notes = _until_other_data(_split_top(text, start, "1H list"), "1H list")
+    raws = [_h1_signal(chunk, pos) for chunk, pos in chunks]
     if not raws:
         raise InputError("1H list is empty: no signals found (expected e.g. '7.26 (s, 5H)')")
     signals, warnings = finish_h1(raws, formula)
-    return PeakList(signals, tuple(warnings), field_mhz, solvent)
+    return PeakList(signals, tuple(notes + warnings), field_mhz, solvent)
 
 
 def read_c13_text(text: str) -> PeakList:
@@ -207,12 +215,25 @@ def read_c13_text(text: str) -> PeakList:
     if nucleus == "H":
         raise InputError("13C list: the header says 1H NMR; give a 1H list with --h1 (or h1 =)")
     raws: list[RawC13] = []
-    for chunk, pos in _split_top(text, start, "13C list"):
+    chunks, notes = _until_other_data(_split_top(text, start, "13C list"), "13C list")
+    for chunk, pos in chunks:
         raws.extend(_c13_chunk(chunk, pos))
     if not raws:
         raise InputError("13C list is empty: no shifts found (expected e.g. '171.1, 60.4, 21.0')")
     signals, warnings = finish_c13(raws)
-    return PeakList(signals, tuple(warnings), None, solvent)
+    return PeakList(signals, tuple(notes + warnings), None, solvent)
+
+
+def _until_other_data(chunks: list[tuple[str, int]], what: str) -> tuple[list[tuple[str, int]], list[str]]:
+    """Stop at a chunk that starts other data (``13C NMR …``, ``HRMS …``), with a note."""
+    for k, (chunk, pos) in enumerate(chunks):
+        if k and _OTHER_DATA.match(chunk):
+            note = (
+                f"{what}: text from position {pos + 1} ('{short(chunk, 20)}') is other data and was "
+                f"not read; give a 1H list with --h1 and a 13C list with --c13"
+            )
+            return chunks[:k], [note]
+    return chunks, []
 
 
 # ------------------------------------------------------------ finishing

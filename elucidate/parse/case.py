@@ -77,6 +77,7 @@ class _Settings:
     c13: _Source | None = None
     require: tuple[str, ...] = ()
     forbid: tuple[str, ...] = ()
+    formula_origin: str = "--formula"
 
 
 def load_problem(
@@ -115,8 +116,10 @@ def load_problem(
     for label, value in (("--formula", formula), ("--h1", h1), ("--c13", c13), ("--solvent", solvent)):
         if value is not None and not isinstance(value, str):
             raise InputError(f"{label} must be text, not {type(value).__name__}")
-    if field_mhz is not None and not isinstance(field_mhz, (int, float)):
+    if field_mhz is not None and (isinstance(field_mhz, bool) or not isinstance(field_mhz, (int, float))):
         raise InputError(f"--field must be a number of MHz, not {type(field_mhz).__name__}")
+    require = (require,) if isinstance(require, str) else tuple(require)
+    forbid = (forbid,) if isinstance(forbid, str) else tuple(forbid)
     settings = _Settings()
     if case is not None:
         path = Path(case)
@@ -126,6 +129,7 @@ def load_problem(
     here = Path.cwd()
     if formula is not None:
         settings.formula = formula
+        settings.formula_origin = "--formula"
     if h1 is not None:
         settings.h1 = _text_or_file(h1, here, "--h1")
     if c13 is not None:
@@ -276,7 +280,7 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
         raise InputError(
             f"{origin}: unknown key '{short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
         )
-    s = _Settings()
+    s = _Settings(formula_origin=origin)
     for key in ("name", "description", "formula", "solvent"):
         if key in doc:
             setattr(s, key, _string(doc[key], key, origin))
@@ -391,7 +395,12 @@ def _read_spectrum(source: _Source, nucleus: str, formula: Formula) -> PeakList:
 def _problem(s: _Settings) -> Problem:
     if s.formula is None:
         raise InputError("no formula given (use --formula or 'formula =' in the case file)")
-    formula = parse_formula(s.formula)
+    try:
+        formula = parse_formula(s.formula)
+    except InputError as err:
+        if s.formula_origin.startswith("--"):
+            raise
+        raise InputError(f"{s.formula_origin}: {err}") from None
     if s.h1 is None:
         raise InputError("no 1H peak list given (use --h1 or 'h1 =' in the case file)")
     warnings: list[str] = []

@@ -264,3 +264,13 @@ def test_approximate_shift_prefixes() -> None:
     for text in ("~1.60 (br s, 1H)", "ca. 1.60 (br s, 1H)", "≈1.60 (br s, 1H)"):
         (s,), _ = parse_h1(text)
         assert (s.shift, s.multiplicity, s.broad) == (1.60, "s", True)
+
+
+def test_last_bare_number_after_a_full_j_list_is_the_integral() -> None:
+    (s,), _ = parse_h1("7.20 (d, J = 8.0, 0.98)")
+    assert (s.couplings, s.integral) == ((8.0,), 0.98)
+    (s,), _ = parse_h1("1.26 (t, J = 7.1, 3)")
+    assert (s.couplings, s.integral) == ((7.1,), 3.0)
+    # a dd with only one J so far: the number is its second J, and the H count is missing
+    with pytest.raises(InputError, match="has no H count"):
+        parse_h1("7.20 (dd, J = 8.0, 2.0)")

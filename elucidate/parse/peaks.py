@@ -461,10 +461,13 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
     absolute = True
     j_open = False
     assignment: list[str] = []
-    for part, ppos in _split_flat(body, body_pos):
+    parts = [(part, ppos) for part, ppos in _split_flat(body, body_pos) if part]
+    for k, (part, ppos) in enumerate(parts):
         at = f"position {ppos + 1}"
-        if not part:
-            continue
+        if j_open and integral is None and k == len(parts) - 1 and _j_list_full(label, raw.couplings):
+            # "(d, J = 8.0, 0.98)": the multiplicity has all its J, so the last bare
+            # number is the (relative) integral, not another coupling constant.
+            j_open = False
         # 1. coupling constants
         jm = J_START_RE.fullmatch(part)
         if jm and not normalise_multiplicity(part):
@@ -527,6 +530,11 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
     raw.integral = integral
     raw.absolute = absolute
     raw.assignment = ", ".join(assignment) if assignment else None
+
+
+def _j_list_full(label: str | None, couplings: list[float]) -> bool:
+    pattern = multiplicity_pattern(label) if label else None
+    return pattern is not None and label != "s" and len(couplings) >= len(pattern)
 
 
 def _integral_value(number: str, token: str, at: str, *, absolute: bool) -> float:

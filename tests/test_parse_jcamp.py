@@ -77,6 +77,19 @@ def test_peak_assignments_xyma() -> None:
     assert [(s.shift, s.assignment) for s in peaks.signals] == [(3.87, "OCH2, next to CH"), (0.93, "(CH3)2")]
 
 
+def test_line_list_of_a_multiplet_is_flagged() -> None:
+    # The four lines of an ethyl-ester OCH2 quartet, J 7.1 Hz at 400 MHz (from memory):
+    # 4.148/4.130/4.112/4.094 ppm — each row would be read as a signal, so warn.
+    text = (
+        "##TITLE=lines\n##.OBSERVE FREQUENCY=400\n##PEAK TABLE=(XY..XY)\n"
+        "4.148, 1\n4.130, 3\n4.112, 3\n4.094, 1\n2.05, 6\n"
+    )
+    peaks = read_peak_text(text, "lines.jdx", "1H")
+    assert len(peaks.signals) == 5
+    assert any("4.148/4.130" in w and "one multiplet" in w for w in peaks.warnings)
+    assert read_peak_text(XYM, "ibp.jdx", "1H", C7H14O2).warnings == ()
+
+
 def test_13c_multiplicities_are_attached_h() -> None:
     # Off-resonance S/D/T/Q = 0/1/2/3 attached H (common practice).
     text = "##TITLE=c\n##.OBSERVE NUCLEUS=^13C\n##PEAK TABLE=(XYM..XYM)\n174.6,10,S\n70.4,30,T\n19.1,60,Q\n"

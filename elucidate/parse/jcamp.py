@@ -25,10 +25,12 @@ from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
 from elucidate.parse.peaks import RawC13, RawH1
 
-__all__ = ["MAX_PEAKS", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
+__all__ = ["MAX_PEAKS", "LINE_SPACING_HZ", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
 
 #: More rows than this is a line list of a whole spectrum, not a signal table.
 MAX_PEAKS = 200
+#: Peaks closer than this (Hz) look like lines of one multiplet (a typical 3J is 6–8 Hz).
+LINE_SPACING_HZ = 10.0
 
 _LDR = re.compile(r"##([^=]*)=(.*)", re.DOTALL)
 _VARLIST = re.compile(r"\s*\(\s*([A-Z]+)\s*(?:\.\.\s*([A-Z]+)\s*)?\)", re.IGNORECASE)
@@ -325,7 +327,24 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
                 notes.append(f"{where}: {mult.note}")
         text = f"{p.x:g}, {p.y:g}" + (f", {p.m}" if p.m else "") + (f", <{p.a}>" if p.a else "")
         rows.append(RawH1(p.x, p.x, label, [], p.y, False, broad, apparent, p.a, text, where, notes))
+    close = _close_lines(doc)
+    if close:
+        rows[0].notes.append(
+            f"{doc.name}: peaks {close} lie within {LINE_SPACING_HZ:g} Hz of each other — if they are "
+            "the lines of one multiplet, give one row per signal (each row is read as a signal)"
+        )
     return rows
+
+
+def _close_lines(doc: JcampPeaks) -> str:
+    """Neighbouring peaks closer than a typical J: a line list rather than signals."""
+    limit = LINE_SPACING_HZ / (doc.observe_mhz or 400.0)
+    xs = sorted({p.x for p in doc.peaks}, reverse=True)
+    pairs = [(a, b) for a, b in zip(xs, xs[1:]) if a - b < limit]
+    if not pairs:
+        return ""
+    shown = ", ".join(f"{a:.3f}/{b:.3f}" for a, b in pairs[:3])
+    return shown + (" …" if len(pairs) > 3 else "")
 
 
 def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:

@@ -349,7 +349,10 @@ def _cell(value: Any, where: str) -> str:
 
 def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[str, str]]]:
     if not isinstance(value, list) or not value:
-        raise InputError(f"{where}: 'peaks' must be a non-empty array of tables, e.g. [{{shift = 2.09, mult = \"s\", h = 3}}]")
+        raise InputError(
+            f"{where}: 'peaks' must be a non-empty array of tables, "
+            'e.g. [{shift = 2.09, mult = "s", h = 3}]'
+        )
     rows = []
     for i, peak in enumerate(value, start=1):
         at = f"{where} peak {i}"
@@ -412,7 +415,9 @@ def _problem(s: _Settings) -> Problem:
         warnings.extend(c13.warnings)
 
     solvent = _choose(
-        "solvent", s.solvent, [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
+        "solvent",
+        s.solvent,
+        [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
         warnings, same=lambda a, b: normalise_solvent(a)[0] == normalise_solvent(b)[0],
     )
     if solvent is not None:
@@ -421,7 +426,9 @@ def _problem(s: _Settings) -> Problem:
             raise InputError("solvent is empty")
         if not known:
             warnings.append(f"solvent '{solvent}' is not in the solvent table: no residual-signal check")
-    field_mhz = _choose("field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1)
+    field_mhz = _choose(
+        "field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1
+    )
     if field_mhz is not None and not (math.isfinite(field_mhz) and 10 <= field_mhz <= 2000):
         raise InputError(f"field '{field_mhz:g}' MHz is not a spectrometer frequency (10–2000 MHz)")
 
@@ -460,7 +467,9 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     if given is not None:
         for where, v in others:
             if not same(given, v):
-                warnings.append(f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}")
+                warnings.append(
+                    f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}"
+                )
         return given
     if not others:
         return None
@@ -468,7 +477,8 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     for where, v in others[1:]:
         if not same(chosen, v):
             warnings.append(
-                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: using {_show(chosen)}"
+                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: "
+                f"using {_show(chosen)}"
             )
     return chosen
 

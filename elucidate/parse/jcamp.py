@@ -25,13 +25,24 @@ from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
 from elucidate.parse.peaks import RawC13, RawH1
 
-__all__ = ["MAX_PEAKS", "LINE_SPACING_HZ", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
+__all__ = [
+    "MAX_PEAKS",
+    "LINE_SPACING_HZ",
+    "JcampPeak",
+    "JcampPeaks",
+    "norm_label",
+    "looks_like_jcamp",
+    "read_jcamp",
+    "jcamp_h1_rows",
+    "jcamp_c13_rows",
+]
 
 #: More rows than this is a line list of a whole spectrum, not a signal table.
 MAX_PEAKS = 200
 #: Peaks closer than this (Hz) look like lines of one multiplet (a typical 3J is 6–8 Hz).
 LINE_SPACING_HZ = 10.0
 
+_NUCLEI = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}
 _LDR = re.compile(r"##([^=]*)=(.*)", re.DOTALL)
 _VARLIST = re.compile(r"\s*\(\s*([A-Z]+)\s*(?:\.\.\s*([A-Z]+)\s*)?\)", re.IGNORECASE)
 
@@ -166,11 +177,12 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     title = header.get("TITLE", ("", 0))[0]
     datatype = header.get("DATATYPE", ("", 0))[0]
     if datatype and "NMR" not in datatype.upper() and "PEAK" not in datatype.upper():
-        raise InputError(f"{name} line {header['DATATYPE'][1]}: DATA TYPE '{short(datatype)}' is not NMR data")
+        line = header["DATATYPE"][1]
+        raise InputError(f"{name} line {line}: DATA TYPE '{short(datatype)}' is not NMR data")
     nucleus = None
     if ".OBSERVENUCLEUS" in header:
         raw_nucleus = header[".OBSERVENUCLEUS"][0].replace("^", "").replace(" ", "").upper()
-        nucleus = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}.get(raw_nucleus, raw_nucleus)
+        nucleus = _NUCLEI.get(raw_nucleus, raw_nucleus)
     observe = None
     if ".OBSERVEFREQUENCY" in header:
         value, line = header[".OBSERVEFREQUENCY"]
@@ -213,8 +225,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
         )
     variables = m.group(1).upper()
     if m.group(2) and m.group(2).upper() != variables:
-        raise InputError(f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list")
-    if not variables.startswith("X") or set(variables) - set("XYWMA") or len(set(variables)) != len(variables):
+        raise InputError(
+            f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list"
+        )
+    known = set("XYWMA")
+    if not variables.startswith("X") or set(variables) - known or len(set(variables)) != len(variables):
         raise InputError(f"{name} line {first_no}: peak columns '{variables}' not understood (X, Y, W, M, A)")
     lines[0] = (first_no, first[m.end():])
     if label == "PEAKASSIGNMENTS" or "A" in variables:

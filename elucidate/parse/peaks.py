@@ -84,7 +84,8 @@ _DELTA_HEADER = re.compile(
 )
 # Where a pasted characterisation paragraph moves on to other data.
 _OTHER_DATA = re.compile(
-    r"(?:1\s*H|¹\s*H|13\s*C|¹³\s*C|19\s*F|¹⁹\s*F|31\s*P|³¹\s*P|29\s*Si)\s*(?:\{[^}]*\})?\s*[-‐ ]?\s*NMR\b"
+    r"(?:1\s*H|¹\s*H|13\s*C|¹³\s*C|19\s*F|¹⁹\s*F|31\s*P|³¹\s*P|29\s*Si)"
+    r"\s*(?:\{[^}]*\})?\s*[-‐ ]?\s*NMR\b"
     r"|(?:HRMS|HR-MS|LRMS|MS|IR|FTIR|FT-IR|UV|Anal\.?|Elemental analysis|m\.\s*p\.|mp|Rf|R_f)\b",
     re.IGNORECASE,
 )
@@ -422,7 +423,9 @@ def _paren_body(chunk: str, i: int, pos: int, what: str) -> tuple[str | None, in
             depth -= 1
             if depth == 0:
                 if chunk[k] != close:
-                    raise InputError(f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'")
+                    raise InputError(
+                        f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'"
+                    )
                 return chunk[j + 1 : k], pos + j + 1, k + 1
     raise InputError(f"{what}: '(' at position {pos + j + 1} is never closed")
 
@@ -564,7 +567,9 @@ def _check_h1_raw(raw: RawH1) -> None:
         )
     for j in raw.couplings:
         if not (math.isfinite(j) and 0 < j <= MAX_J_HZ):
-            raise InputError(f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)")
+            raise InputError(
+                f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)"
+            )
 
 
 def _multiplicity_warnings(sig: H1Signal) -> list[str]:
@@ -594,7 +599,8 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
     if not relative:
         return values, [], False
     if formula is None:
-        return values, ["1H integrals look relative and no formula was given: H counts left as written"], False
+        note = "1H integrals look relative and no formula was given: H counts left as written"
+        return values, [note], False
     n_h = formula["H"]
     if n_h == 0:
         raise InputError(f"formula {formula.hill} has no H, but a 1H peak list was given")
@@ -632,6 +638,12 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
 # ------------------------------------------------------------------- 13C
 
 
+# "2C", "2 C", "x2", "2x", "2 x CH" (× already turned into x; lower case)
+_CARBON_COUNT = re.compile(
+    r"([0-9]{1,6})\s*c|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|cq|c)"
+)
+
+
 def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
     """One comma-separated chunk: one or more ``shift [(details)]`` separated by spaces."""
     out = []
@@ -663,13 +675,13 @@ def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
 
 def _c13_details(raw: RawC13, body: str, body_pos: int) -> None:
     parts = _split_flat(body, body_pos)
-    has_j = any(J_START_RE.fullmatch(p) and p.strip().upper().startswith(("J", "1J", "2J", "3J", "4J")) for p, _ in parts)
+    has_j = any(J_START_RE.fullmatch(p) for p, _ in parts)
     for part, ppos in parts:
         at = f"position {ppos + 1}"
         key = " ".join(part.lower().replace("×", " x ").split())
         if not key:
             continue
-        m = re.fullmatch(r"([0-9]{1,6})\s*c(?:\s*x)?|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|c|cq)", key)
+        m = _CARBON_COUNT.fullmatch(key)
         if m:
             digits = next(g for g in m.groups()[:4] if g)
             raw.carbons = int(digits)

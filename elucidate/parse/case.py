@@ -178,7 +178,7 @@ def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None =
         raise InputError(f"nucleus must be 1H or 13C, not '{short(str(nucleus))}'")
     suffix = Path(name).suffix.lower()
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
-        doc = read_jcamp(text, name)
+        doc = read_jcamp(text, name, nucleus)
         if nucleus == "1H":
             signals, warnings = finish_h1(jcamp_h1_rows(doc), formula)
             field_mhz = doc.observe_mhz if doc.nucleus in (None, "1H") else None

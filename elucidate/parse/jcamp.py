@@ -90,7 +90,7 @@ def looks_like_jcamp(text: str) -> bool:
     return False
 
 
-def read_jcamp(text: str, name: str) -> JcampPeaks:
+def read_jcamp(text: str, name: str, nucleus: str | None = None) -> JcampPeaks:
     """Read the peak table of a JCAMP-DX text.
 
     Parameters
@@ -99,6 +99,9 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
         File contents.
     name : str
         File name for messages.
+    nucleus : {"1H", "13C"}, optional
+        In a file with several blocks, prefer the first peak table whose
+        ``##.OBSERVE NUCLEUS=`` is this one (or is not stated).
 
     Raises
     ------
@@ -108,10 +111,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
     """
     records = _records(text, name)
     blocks = _blocks(records)
-    for block in blocks:
-        labels = {label for label, _, _ in block}
-        if "PEAKTABLE" in labels or "PEAKASSIGNMENTS" in labels:
-            return _peaks(block, name)
+    tables = [b for b in blocks if any(label in ("PEAKTABLE", "PEAKASSIGNMENTS") for label, _, _ in b)]
+    if tables:
+        for block in tables:
+            stated = next((v for label, v, _ in block if label == ".OBSERVENUCLEUS"), None)
+            if nucleus is None or stated is None or _nucleus(stated) == nucleus:
+                return _peaks(block, name)
+        return _peaks(tables[0], name)  # the nucleus check then names the mismatch
     if any(label in ("XYDATA", "DATATABLE", "XYPOINTS") for block in blocks for label, _, _ in block):
         raise InputError(
             f"{name}: holds a full spectrum (XYDATA), not a peak table; export the peak list "
@@ -181,8 +187,7 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
         raise InputError(f"{name} line {line}: DATA TYPE '{short(datatype)}' is not NMR data")
     nucleus = None
     if ".OBSERVENUCLEUS" in header:
-        raw_nucleus = header[".OBSERVENUCLEUS"][0].replace("^", "").replace(" ", "").upper()
-        nucleus = _NUCLEI.get(raw_nucleus, raw_nucleus)
+        nucleus = _nucleus(header[".OBSERVENUCLEUS"][0])
     observe = None
     if ".OBSERVEFREQUENCY" in header:
         value, line = header[".OBSERVEFREQUENCY"]
@@ -258,6 +263,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     if not peaks:
         raise InputError(f"{name} line {line}: the peak table is empty")
     return JcampPeaks(name, title, nucleus, observe, solvent, variables, tuple(peaks))
+
+
+def _nucleus(value: str) -> str:
+    raw = _clean(value).replace("^", "").replace(" ", "").upper()
+    return _NUCLEI.get(raw, raw)
 
 
 def _flat_tuples(lines: list[tuple[int, str]], width: int, name: str) -> list[tuple[list[str], int]]:

@@ -130,3 +130,26 @@ def test_help() -> None:
     result = runner.invoke(app, ["read", "--help"])
     assert result.exit_code == 0
     assert "--h1" in result.stdout and "--json" in result.stdout
+
+
+def test_real_process_one_line_and_exit_code() -> None:
+    # The console entry point itself (not only the typer app): exit 2, one stderr line.
+    import subprocess
+    import sys
+
+    import os
+
+    root = Path(__file__).resolve().parents[1]
+    env = {**os.environ, "PYTHONIOENCODING": "utf-8"}
+    bad = subprocess.run(
+        [sys.executable, "-m", "elucidate", "read", "--formula", "C9H10O2", "--h1", "7.2 (q, 2H"],
+        cwd=root, capture_output=True, encoding="utf-8", env=env, timeout=120,
+    )
+    assert bad.returncode == 2 and bad.stdout == ""
+    assert bad.stderr.splitlines() == ["error: 1H list: '(' at position 5 is never closed ('(q, 2H' — missing ')')"]
+    good = subprocess.run(
+        [sys.executable, "-m", "elucidate", "read", "--formula", "C9H10O2", "--h1", BENZYL, "--json"],
+        cwd=root, capture_output=True, encoding="utf-8", env=env, timeout=120,
+    )
+    doc = json.loads(good.stdout)
+    assert (good.returncode, doc["dou"], len(doc["h1"]), doc["h1_total"]) == (0, 5, 3, 10)

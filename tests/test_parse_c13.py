@@ -54,6 +54,14 @@ def test_letter_with_j_is_a_coupling_not_dept() -> None:
     assert s.attached_h is None
 
 
+def test_decoupled_header_and_trailing_other_data() -> None:
+    peaks = read_c13_text("13C{1H} NMR (101 MHz, CDCl3) δ 171.1, 60.4; IR (neat) 1740 cm-1")
+    assert peaks.solvent == "CDCl3" and [s.shift for s in peaks.signals] == [171.1, 60.4]
+    assert "'IR (neat)" in peaks.warnings[0]
+    peaks = read_c13_text("δC (101 MHz; CDCl3) 171.1, 60.4")
+    assert peaks.solvent == "CDCl3" and len(peaks.signals) == 2
+
+
 def test_space_and_semicolon_separated() -> None:
     signals, _ = parse_c13("197.8; 143.9; 26.5 21.6")
     assert [s.shift for s in signals] == [197.8, 143.9, 26.5, 21.6]

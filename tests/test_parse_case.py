@@ -83,6 +83,7 @@ peaks = [{shift = 171.1, type = "C"}, {shift = 60.4, dept = "CH2"}, {shift = 21.
         ('formula = C4H8O2\n', r"not valid TOML .*line 1"),
         ('formula = 4\nh1 = "2.05 (s, 3H)"\n', r"'formula' must be a string"),
         ('formula = "C4H8O2"\n', r"no 1H peak list"),
+        ('formula = "C6H7"\nh1 = "7.26 (s, 1H)"\n', r"^case file: formula 'C6H7' gives a half-integer"),
         ('h1 = "2.05 (s, 3H)"\n', r"no formula"),
         ('formula = "C4H8O2"\nh1 = "2.05 (x, 3H)"\n', r"case file, h1: 1H list: 'x' at position 7"),
         ('formula = "C4H8O2"\nh1 = "@missing.csv"\n', r"'.*missing.csv' not found"),
@@ -165,3 +166,8 @@ def test_json_is_deterministic() -> None:
     a = json.dumps(load_problem(CASES / "u033.toml").to_json(), ensure_ascii=False)
     b = json.dumps(load_problem(CASES / "u033.toml").to_json(), ensure_ascii=False)
     assert a == b
+
+
+def test_single_smarts_string_is_one_pattern() -> None:
+    problem = load_problem(formula="C4H8O2", h1="2.05 (s, 3H)", require="C(=O)O")  # type: ignore[arg-type]
+    assert problem.require == ("C(=O)O",)

@@ -247,3 +247,30 @@ def test_bad_h1_names_token_and_position(case: BadH1) -> None:
     with pytest.raises(InputError, match=case.match) as info:
         parse_h1(case.text)
     assert "\n" not in str(info.value)
+
+
+def test_pasted_paragraph_stops_at_other_data() -> None:
+    # A whole characterisation paragraph pasted in: the 1H part is read, the rest noted.
+    text = (
+        "1H NMR (400 MHz, CDCl3) δ 4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H); "
+        "13C NMR (101 MHz, CDCl3) δ 171.1, 60.4, 21.0, 14.2; HRMS (EI) m/z 88.0524"
+    )
+    signals, warnings = parse_h1(text, formula=parse_formula("C4H8O2"))
+    assert norm(signals) == ETHYL_ACETATE
+    assert len(warnings) == 1 and "'13C NMR" in warnings[0] and "not read" in warnings[0]
+
+
+def test_approximate_shift_prefixes() -> None:
+    for text in ("~1.60 (br s, 1H)", "ca. 1.60 (br s, 1H)", "≈1.60 (br s, 1H)"):
+        (s,), _ = parse_h1(text)
+        assert (s.shift, s.multiplicity, s.broad) == (1.60, "s", True)
+
+
+def test_last_bare_number_after_a_full_j_list_is_the_integral() -> None:
+    (s,), _ = parse_h1("7.20 (d, J = 8.0, 0.98)")
+    assert (s.couplings, s.integral) == ((8.0,), 0.98)
+    (s,), _ = parse_h1("1.26 (t, J = 7.1, 3)")
+    assert (s.couplings, s.integral) == ((7.1,), 3.0)
+    # a dd with only one J so far: the number is its second J, and the H count is missing
+    with pytest.raises(InputError, match="has no H count"):
+        parse_h1("7.20 (dd, J = 8.0, 2.0)")

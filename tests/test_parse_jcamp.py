@@ -77,6 +77,35 @@ def test_peak_assignments_xyma() -> None:
     assert [(s.shift, s.assignment) for s in peaks.signals] == [(3.87, "OCH2, next to CH"), (0.93, "(CH3)2")]
 
 
+def test_linked_file_with_1h_and_13c_blocks() -> None:
+    # Ethyl acetate 1H and 13C (Gottlieb et al. 1997, from memory) in one linked file.
+    text = (
+        "##TITLE=ethyl acetate\n##BLOCKS=2\n"
+        "##TITLE=1H\n##.OBSERVE NUCLEUS=^1H\n##PEAK TABLE=(XYM..XYM)\n4.12,2,Q\n2.05,3,S\n1.26,3,T\n##END=\n"
+        "##TITLE=13C\n##.OBSERVE NUCLEUS=^13C\n##PEAK TABLE=(XY..XY)\n171.1,1\n60.4,1\n21.0,1\n14.2,1\n##END=\n"
+        "##END=\n"
+    )
+    h1 = read_peak_text(text, "ea.jdx", "1H", parse_formula("C4H8O2"))
+    c13 = read_peak_text(text, "ea.jdx", "13C")
+    assert [(s.shift, s.multiplicity, s.h_count) for s in h1.signals] == [
+        (4.12, "q", 2.0), (2.05, "s", 3.0), (1.26, "t", 3.0)
+    ]
+    assert [s.shift for s in c13.signals] == [171.1, 60.4, 21.0, 14.2]
+
+
+def test_line_list_of_a_multiplet_is_flagged() -> None:
+    # The four lines of an ethyl-ester OCH2 quartet, J 7.1 Hz at 400 MHz (from memory):
+    # 4.148/4.130/4.112/4.094 ppm — each row would be read as a signal, so warn.
+    text = (
+        "##TITLE=lines\n##.OBSERVE FREQUENCY=400\n##PEAK TABLE=(XY..XY)\n"
+        "4.148, 1\n4.130, 3\n4.112, 3\n4.094, 1\n2.05, 6\n"
+    )
+    peaks = read_peak_text(text, "lines.jdx", "1H")
+    assert len(peaks.signals) == 5
+    assert any("4.148/4.130" in w and "one multiplet" in w for w in peaks.warnings)
+    assert read_peak_text(XYM, "ibp.jdx", "1H", C7H14O2).warnings == ()
+
+
 def test_13c_multiplicities_are_attached_h() -> None:
     # Off-resonance S/D/T/Q = 0/1/2/3 attached H (common practice).
     text = "##TITLE=c\n##.OBSERVE NUCLEUS=^13C\n##PEAK TABLE=(XYM..XYM)\n174.6,10,S\n70.4,30,T\n19.1,60,Q\n"

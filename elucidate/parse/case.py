@@ -77,6 +77,7 @@ class _Settings:
     c13: _Source | None = None
     require: tuple[str, ...] = ()
     forbid: tuple[str, ...] = ()
+    formula_origin: str = "--formula"
 
 
 def load_problem(
@@ -115,8 +116,10 @@ def load_problem(
     for label, value in (("--formula", formula), ("--h1", h1), ("--c13", c13), ("--solvent", solvent)):
         if value is not None and not isinstance(value, str):
             raise InputError(f"{label} must be text, not {type(value).__name__}")
-    if field_mhz is not None and not isinstance(field_mhz, (int, float)):
+    if field_mhz is not None and (isinstance(field_mhz, bool) or not isinstance(field_mhz, (int, float))):
         raise InputError(f"--field must be a number of MHz, not {type(field_mhz).__name__}")
+    require = (require,) if isinstance(require, str) else tuple(require)
+    forbid = (forbid,) if isinstance(forbid, str) else tuple(forbid)
     settings = _Settings()
     if case is not None:
         path = Path(case)
@@ -126,6 +129,7 @@ def load_problem(
     here = Path.cwd()
     if formula is not None:
         settings.formula = formula
+        settings.formula_origin = "--formula"
     if h1 is not None:
         settings.h1 = _text_or_file(h1, here, "--h1")
     if c13 is not None:
@@ -174,7 +178,7 @@ def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None =
         raise InputError(f"nucleus must be 1H or 13C, not '{short(str(nucleus))}'")
     suffix = Path(name).suffix.lower()
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
-        doc = read_jcamp(text, name)
+        doc = read_jcamp(text, name, nucleus)
         if nucleus == "1H":
             signals, warnings = finish_h1(jcamp_h1_rows(doc), formula)
             field_mhz = doc.observe_mhz if doc.nucleus in (None, "1H") else None
@@ -276,7 +280,7 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
         raise InputError(
             f"{origin}: unknown key '{short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
         )
-    s = _Settings()
+    s = _Settings(formula_origin=origin)
     for key in ("name", "description", "formula", "solvent"):
         if key in doc:
             setattr(s, key, _string(doc[key], key, origin))
@@ -345,7 +349,10 @@ def _cell(value: Any, where: str) -> str:
 
 def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[str, str]]]:
     if not isinstance(value, list) or not value:
-        raise InputError(f"{where}: 'peaks' must be a non-empty array of tables, e.g. [{{shift = 2.09, mult = \"s\", h = 3}}]")
+        raise InputError(
+            f"{where}: 'peaks' must be a non-empty array of tables, "
+            'e.g. [{shift = 2.09, mult = "s", h = 3}]'
+        )
     rows = []
     for i, peak in enumerate(value, start=1):
         at = f"{where} peak {i}"
@@ -391,7 +398,12 @@ def _read_spectrum(source: _Source, nucleus: str, formula: Formula) -> PeakList:
 def _problem(s: _Settings) -> Problem:
     if s.formula is None:
         raise InputError("no formula given (use --formula or 'formula =' in the case file)")
-    formula = parse_formula(s.formula)
+    try:
+        formula = parse_formula(s.formula)
+    except InputError as err:
+        if s.formula_origin.startswith("--"):
+            raise
+        raise InputError(f"{s.formula_origin}: {err}") from None
     if s.h1 is None:
         raise InputError("no 1H peak list given (use --h1 or 'h1 =' in the case file)")
     warnings: list[str] = []
@@ -403,7 +415,9 @@ def _problem(s: _Settings) -> Problem:
         warnings.extend(c13.warnings)
 
     solvent = _choose(
-        "solvent", s.solvent, [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
+        "solvent",
+        s.solvent,
+        [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
         warnings, same=lambda a, b: normalise_solvent(a)[0] == normalise_solvent(b)[0],
     )
     if solvent is not None:
@@ -412,7 +426,9 @@ def _problem(s: _Settings) -> Problem:
             raise InputError("solvent is empty")
         if not known:
             warnings.append(f"solvent '{solvent}' is not in the solvent table: no residual-signal check")
-    field_mhz = _choose("field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1)
+    field_mhz = _choose(
+        "field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1
+    )
     if field_mhz is not None and not (math.isfinite(field_mhz) and 10 <= field_mhz <= 2000):
         raise InputError(f"field '{field_mhz:g}' MHz is not a spectrometer frequency (10–2000 MHz)")
 
@@ -451,7 +467,9 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     if given is not None:
         for where, v in others:
             if not same(given, v):
-                warnings.append(f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}")
+                warnings.append(
+                    f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}"
+                )
         return given
     if not others:
         return None
@@ -459,7 +477,8 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     for where, v in others[1:]:
         if not same(chosen, v):
             warnings.append(
-                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: using {_show(chosen)}"
+                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: "
+                f"using {_show(chosen)}"
             )
     return chosen
 

@@ -25,11 +25,24 @@ from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
 from elucidate.parse.peaks import RawC13, RawH1
 
-__all__ = ["MAX_PEAKS", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
+__all__ = [
+    "MAX_PEAKS",
+    "LINE_SPACING_HZ",
+    "JcampPeak",
+    "JcampPeaks",
+    "norm_label",
+    "looks_like_jcamp",
+    "read_jcamp",
+    "jcamp_h1_rows",
+    "jcamp_c13_rows",
+]
 
 #: More rows than this is a line list of a whole spectrum, not a signal table.
 MAX_PEAKS = 200
+#: Peaks closer than this (Hz) look like lines of one multiplet (a typical 3J is 6–8 Hz).
+LINE_SPACING_HZ = 10.0
 
+_NUCLEI = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}
 _LDR = re.compile(r"##([^=]*)=(.*)", re.DOTALL)
 _VARLIST = re.compile(r"\s*\(\s*([A-Z]+)\s*(?:\.\.\s*([A-Z]+)\s*)?\)", re.IGNORECASE)
 
@@ -77,7 +90,7 @@ def looks_like_jcamp(text: str) -> bool:
     return False
 
 
-def read_jcamp(text: str, name: str) -> JcampPeaks:
+def read_jcamp(text: str, name: str, nucleus: str | None = None) -> JcampPeaks:
     """Read the peak table of a JCAMP-DX text.
 
     Parameters
@@ -86,6 +99,9 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
         File contents.
     name : str
         File name for messages.
+    nucleus : {"1H", "13C"}, optional
+        In a file with several blocks, prefer the first peak table whose
+        ``##.OBSERVE NUCLEUS=`` is this one (or is not stated).
 
     Raises
     ------
@@ -95,10 +111,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
     """
     records = _records(text, name)
     blocks = _blocks(records)
-    for block in blocks:
-        labels = {label for label, _, _ in block}
-        if "PEAKTABLE" in labels or "PEAKASSIGNMENTS" in labels:
-            return _peaks(block, name)
+    tables = [b for b in blocks if any(label in ("PEAKTABLE", "PEAKASSIGNMENTS") for label, _, _ in b)]
+    if tables:
+        for block in tables:
+            stated = next((v for label, v, _ in block if label == ".OBSERVENUCLEUS"), None)
+            if nucleus is None or stated is None or _nucleus(stated) == nucleus:
+                return _peaks(block, name)
+        return _peaks(tables[0], name)  # the nucleus check then names the mismatch
     if any(label in ("XYDATA", "DATATABLE", "XYPOINTS") for block in blocks for label, _, _ in block):
         raise InputError(
             f"{name}: holds a full spectrum (XYDATA), not a peak table; export the peak list "
@@ -164,11 +183,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     title = header.get("TITLE", ("", 0))[0]
     datatype = header.get("DATATYPE", ("", 0))[0]
     if datatype and "NMR" not in datatype.upper() and "PEAK" not in datatype.upper():
-        raise InputError(f"{name} line {header['DATATYPE'][1]}: DATA TYPE '{short(datatype)}' is not NMR data")
+        line = header["DATATYPE"][1]
+        raise InputError(f"{name} line {line}: DATA TYPE '{short(datatype)}' is not NMR data")
     nucleus = None
     if ".OBSERVENUCLEUS" in header:
-        raw_nucleus = header[".OBSERVENUCLEUS"][0].replace("^", "").replace(" ", "").upper()
-        nucleus = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}.get(raw_nucleus, raw_nucleus)
+        nucleus = _nucleus(header[".OBSERVENUCLEUS"][0])
     observe = None
     if ".OBSERVEFREQUENCY" in header:
         value, line = header[".OBSERVEFREQUENCY"]
@@ -211,8 +230,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
         )
     variables = m.group(1).upper()
     if m.group(2) and m.group(2).upper() != variables:
-        raise InputError(f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list")
-    if not variables.startswith("X") or set(variables) - set("XYWMA") or len(set(variables)) != len(variables):
+        raise InputError(
+            f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list"
+        )
+    known = set("XYWMA")
+    if not variables.startswith("X") or set(variables) - known or len(set(variables)) != len(variables):
         raise InputError(f"{name} line {first_no}: peak columns '{variables}' not understood (X, Y, W, M, A)")
     lines[0] = (first_no, first[m.end():])
     if label == "PEAKASSIGNMENTS" or "A" in variables:
@@ -241,6 +263,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     if not peaks:
         raise InputError(f"{name} line {line}: the peak table is empty")
     return JcampPeaks(name, title, nucleus, observe, solvent, variables, tuple(peaks))
+
+
+def _nucleus(value: str) -> str:
+    raw = _clean(value).replace("^", "").replace(" ", "").upper()
+    return _NUCLEI.get(raw, raw)
 
 
 def _flat_tuples(lines: list[tuple[int, str]], width: int, name: str) -> list[tuple[list[str], int]]:
@@ -325,7 +352,24 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
                 notes.append(f"{where}: {mult.note}")
         text = f"{p.x:g}, {p.y:g}" + (f", {p.m}" if p.m else "") + (f", <{p.a}>" if p.a else "")
         rows.append(RawH1(p.x, p.x, label, [], p.y, False, broad, apparent, p.a, text, where, notes))
+    close = _close_lines(doc)
+    if close:
+        rows[0].notes.append(
+            f"{doc.name}: peaks {close} lie within {LINE_SPACING_HZ:g} Hz of each other — if they are "
+            "the lines of one multiplet, give one row per signal (each row is read as a signal)"
+        )
     return rows
+
+
+def _close_lines(doc: JcampPeaks) -> str:
+    """Neighbouring peaks closer than a typical J: a line list rather than signals."""
+    limit = LINE_SPACING_HZ / (doc.observe_mhz or 400.0)
+    xs = sorted({p.x for p in doc.peaks}, reverse=True)
+    pairs = [(a, b) for a, b in zip(xs, xs[1:]) if a - b < limit]
+    if not pairs:
+        return ""
+    shown = ", ".join(f"{a:.3f}/{b:.3f}" for a, b in pairs[:3])
+    return shown + (" …" if len(pairs) > 3 else "")
 
 
 def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:

@@ -61,7 +61,7 @@ def to_float(token: str, what: str, where: str) -> float:
 
 
 def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
-    """Read ``[δ] shift [– shift] [ppm]`` at the start of ``chunk``.
+    """Read ``[δ] [~|ca.] shift [– shift] [ppm]`` at the start of ``chunk``.
 
     Parameters
     ----------
@@ -81,13 +81,16 @@ def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
     d = re.match(r"(?:δ|delta)\s*[HC]?\s*[=:]?\s*", chunk, re.IGNORECASE)
     if d:
         i = d.end()
+    about = re.match(r"(?:~|≈|ca\.?|approx\.?|c\.)\s*", chunk[i:], re.IGNORECASE)
+    if about:
+        i += about.end()
     m = NUMBER_RE.match(chunk, i)
     if m is None:
-        token = re.match(r"[^\s(,;]*", chunk[i:]).group(0) or chunk[i : i + 1]  # type: ignore[union-attr]
+        token = _token(chunk[i:]) or chunk[i : i + 1]
         raise InputError(f"{what}: '{short(token)}' at position {pos + i + 1} is not a chemical shift")
     after = m.end()
     if after < len(chunk) and (chunk[after].isalpha() and chunk[after] not in "p" or chunk[after] in "eE"):
-        token = re.match(r"[^\s(,;]*", chunk[i:]).group(0)  # type: ignore[union-attr]
+        token = _token(chunk[i:])
         raise InputError(f"{what}: '{short(token)}' at position {pos + i + 1} is not a chemical shift")
     a = to_float(m.group(0), f"{what}: shift", f"position {pos + i + 1}")
     b = a
@@ -96,7 +99,7 @@ def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
     if sep and sep.end() > i:
         m2 = NUMBER_RE.match(chunk, sep.end())
         if m2 is None:
-            token = re.match(r"[^\s(,;]*", chunk[sep.end() :]).group(0) or chunk[sep.start() : sep.end()]  # type: ignore[union-attr]
+            token = _token(chunk[sep.end() :]) or chunk[sep.start() : sep.end()]
             raise InputError(
                 f"{what}: '{short(token)}' at position {pos + sep.end() + 1} is not the other end "
                 "of a shift range"
@@ -109,7 +112,9 @@ def read_shift(chunk: str, pos: int, what: str) -> tuple[float, float, int]:
     return a, b, i
 
 
-def read_couplings(rest: str, pos: int, locate: Callable[[int], str] | None = None) -> tuple[list[float], bool]:
+def read_couplings(
+    rest: str, pos: int, locate: Callable[[int], str] | None = None
+) -> tuple[list[float], bool]:
     """Numbers of a J list (``7.9, 1.7 Hz``, ``7.9 and 1.7``, ``7.9/1.7``); closed by Hz.
 
     ``locate(i)`` names the place of character ``i`` of ``rest`` in messages;
@@ -147,6 +152,15 @@ def read_couplings(rest: str, pos: int, locate: Callable[[int], str] | None = No
         values.append(value)
         i = m.end()
     return values, closed
+
+
+_TOKEN = re.compile(r"[^\s(,;]*")
+
+
+def _token(text: str) -> str:
+    """The word at the start of ``text`` (up to a space, bracket, comma or semicolon)."""
+    m = _TOKEN.match(text)
+    return m.group(0) if m else ""
 
 
 def short(token: str, limit: int = 30) -> str:

@@ -21,7 +21,7 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass, field
-from typing import Sequence
+from typing import Any, Sequence
 
 from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, multiplicity_pattern
@@ -71,7 +71,8 @@ _INTEGRAL = re.compile(r"(" + NUMBER + r"(?:[eE][+\-]?[0-9]+)?)\s*H(?:'?s)?", re
 _HZ_NUMBER = re.compile(r"(" + NUMBER + r")\s*Hz", re.IGNORECASE)
 _DELTA = r"(?:δ|delta|d(?=\s*[=:]))\s*[HC]?\s*(?:\(\s*ppm\s*\)|/\s*ppm|,?\s*ppm)?\s*[:=]?"
 _HEADER = re.compile(
-    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*[-‐ ]?\s*NMR\b\s*"
+    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*(?:\{\s*(?:1|¹)\s*H\s*\})?"
+    r"\s*[-‐ ]?\s*NMR\b\s*"
     r"(?:spectrum\s*)?(?:\((?P<inner>[^()]*)\))?\s*[:,]?\s*(?:" + _DELTA + r")?",
     re.IGNORECASE,
 )
@@ -79,6 +80,13 @@ _DELTA_ONLY = re.compile(r"\s*" + _DELTA, re.IGNORECASE)
 # "δH (400 MHz; CDCl3) 7.30 (5 H, m)": the header without "NMR"
 _DELTA_HEADER = re.compile(
     r"\s*(?:δ|delta)\s*(?P<nucleus>[HC])?\s*\((?P<inner>[^()]*)\)\s*[:,]?\s*(?:ppm\b)?\s*[:=]?",
+    re.IGNORECASE,
+)
+# Where a pasted characterisation paragraph moves on to other data.
+_OTHER_DATA = re.compile(
+    r"(?:1\s*H|¹\s*H|13\s*C|¹³\s*C|19\s*F|¹⁹\s*F|31\s*P|³¹\s*P|29\s*Si)"
+    r"\s*(?:\{[^}]*\})?\s*[-‐ ]?\s*NMR\b"
+    r"|(?:HRMS|HR-MS|LRMS|MS|IR|FTIR|FT-IR|UV|Anal\.?|Elemental analysis|m\.\s*p\.|mp|Rf|R_f)\b",
     re.IGNORECASE,
 )
 _MHZ = re.compile(r"(" + NUMBER + r")\s*MHz", re.IGNORECASE)
@@ -126,7 +134,7 @@ class RawC13:
 class PeakList:
     """Result of reading a peak list: signals, warnings, and what the header said."""
 
-    signals: tuple
+    signals: tuple[Any, ...]
     warnings: tuple[str, ...] = ()
     field_mhz: float | None = None
     solvent: str | None = None
@@ -192,11 +200,12 @@ def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
     start, field_mhz, solvent, nucleus = _header(text, "1H list")
     if nucleus == "C":
         raise InputError("1H list: the header says 13C NMR; give a 13C list with --c13 (or c13 =)")
-    raws = [_h1_signal(text, chunk, pos) for chunk, pos in _split_top(text, start, "1H list")]
+    chunks, notes = _until_other_data(_split_top(text, start, "1H list"), "1H list")
+    raws = [_h1_signal(chunk, pos) for chunk, pos in chunks]
     if not raws:
         raise InputError("1H list is empty: no signals found (expected e.g. '7.26 (s, 5H)')")
     signals, warnings = finish_h1(raws, formula)
-    return PeakList(signals, tuple(warnings), field_mhz, solvent)
+    return PeakList(signals, tuple(notes + warnings), field_mhz, solvent)
 
 
 def read_c13_text(text: str) -> PeakList:
@@ -207,12 +216,25 @@ def read_c13_text(text: str) -> PeakList:
     if nucleus == "H":
         raise InputError("13C list: the header says 1H NMR; give a 1H list with --h1 (or h1 =)")
     raws: list[RawC13] = []
-    for chunk, pos in _split_top(text, start, "13C list"):
-        raws.extend(_c13_chunk(text, chunk, pos))
+    chunks, notes = _until_other_data(_split_top(text, start, "13C list"), "13C list")
+    for chunk, pos in chunks:
+        raws.extend(_c13_chunk(chunk, pos))
     if not raws:
         raise InputError("13C list is empty: no shifts found (expected e.g. '171.1, 60.4, 21.0')")
     signals, warnings = finish_c13(raws)
-    return PeakList(signals, tuple(warnings), None, solvent)
+    return PeakList(signals, tuple(notes + warnings), None, solvent)
+
+
+def _until_other_data(chunks: list[tuple[str, int]], what: str) -> tuple[list[tuple[str, int]], list[str]]:
+    """Stop at a chunk that starts other data (``13C NMR …``, ``HRMS …``), with a note."""
+    for k, (chunk, pos) in enumerate(chunks):
+        if k and _OTHER_DATA.match(chunk):
+            note = (
+                f"{what}: text from position {pos + 1} ('{short(chunk, 20)}') is other data and was "
+                f"not read; give a 1H list with --h1 and a 13C list with --c13"
+            )
+            return chunks[:k], [note]
+    return chunks, []
 
 
 # ------------------------------------------------------------ finishing
@@ -226,7 +248,7 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
     for raw in raws:
         _check_h1_raw(raw)
         warnings.extend(raw.notes)
-    counts, scale_warnings = _h_counts(raws, formula)
+    counts, scale_warnings, total_stated = _h_counts(raws, formula)
     warnings.extend(scale_warnings)
     signals = []
     for raw, count in zip(raws, counts):
@@ -246,12 +268,12 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
                 text=raw.text,
             )
         )
-        warnings.extend(_multiplicity_warnings(signals[-1], raw.where))
+        warnings.extend(_multiplicity_warnings(signals[-1]))
     signals.sort(key=lambda s: -s.shift)  # stable: ties keep the written order
     if formula is not None:
         total = sum(s.h_count for s in signals)
         n_h = formula["H"]
-        if abs(total - n_h) > 0.01 and not any("scaled" in w for w in scale_warnings):
+        if abs(total - n_h) > 0.01 and not total_stated:
             if total < n_h:
                 why = "missing exchangeable OH/NH, overlapping signals or an integral too low"
             else:
@@ -347,7 +369,8 @@ def _split_top(text: str, start: int, what: str) -> list[tuple[str, int]]:
     if depth:
         pos = opened[-1]
         raise InputError(
-            f"{what}: '(' at position {pos + 1} is never closed ('{short(text[pos:])}' — missing ')')"
+            f"{what}: '{text[pos]}' at position {pos + 1} is never closed ('{short(text[pos:])}' — "
+            f"missing '{')' if text[pos] == '(' else ']'}')"
         )
     chunks.append((text[begin:], begin))
     out = []
@@ -400,7 +423,9 @@ def _paren_body(chunk: str, i: int, pos: int, what: str) -> tuple[str | None, in
             depth -= 1
             if depth == 0:
                 if chunk[k] != close:
-                    raise InputError(f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'")
+                    raise InputError(
+                        f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'"
+                    )
                 return chunk[j + 1 : k], pos + j + 1, k + 1
     raise InputError(f"{what}: '(' at position {pos + j + 1} is never closed")
 
@@ -416,7 +441,7 @@ def _tail_check(chunk: str, i: int, pos: int, what: str) -> None:
     )
 
 
-def _h1_signal(text: str, chunk: str, pos: int) -> RawH1:
+def _h1_signal(chunk: str, pos: int) -> RawH1:
     what = "1H list"
     a, b, i = read_shift(chunk, pos, what)
     body, body_pos, i = _paren_body(chunk, i, pos, what)
@@ -439,10 +464,13 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
     absolute = True
     j_open = False
     assignment: list[str] = []
-    for part, ppos in _split_flat(body, body_pos):
+    parts = [(part, ppos) for part, ppos in _split_flat(body, body_pos) if part]
+    for k, (part, ppos) in enumerate(parts):
         at = f"position {ppos + 1}"
-        if not part:
-            continue
+        if j_open and integral is None and k == len(parts) - 1 and _j_list_full(label, raw.couplings):
+            # "(d, J = 8.0, 0.98)": the multiplicity has all its J, so the last bare
+            # number is the (relative) integral, not another coupling constant.
+            j_open = False
         # 1. coupling constants
         jm = J_START_RE.fullmatch(part)
         if jm and not normalise_multiplicity(part):
@@ -507,6 +535,11 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
     raw.assignment = ", ".join(assignment) if assignment else None
 
 
+def _j_list_full(label: str | None, couplings: list[float]) -> bool:
+    pattern = multiplicity_pattern(label) if label else None
+    return pattern is not None and label != "s" and len(couplings) >= len(pattern)
+
+
 def _integral_value(number: str, token: str, at: str, *, absolute: bool) -> float:
     value = to_float(number, "1H list: integral", at)
     limit = MAX_H_PER_SIGNAL if absolute else MAX_RELATIVE_INTEGRAL
@@ -534,10 +567,12 @@ def _check_h1_raw(raw: RawH1) -> None:
         )
     for j in raw.couplings:
         if not (math.isfinite(j) and 0 < j <= MAX_J_HZ):
-            raise InputError(f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)")
+            raise InputError(
+                f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)"
+            )
 
 
-def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
+def _multiplicity_warnings(sig: H1Signal) -> list[str]:
     out = []
     if sig.multiplicity == "s" and sig.couplings:
         out.append(f"1H signal at {sig.shift:g} ppm is a singlet but lists J values")
@@ -553,14 +588,19 @@ def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
 # ------------------------------------------------------------- integrals
 
 
-def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str]]:
-    """H per signal: as written, or relative integrals scaled to the formula."""
+def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str], bool]:
+    """H per signal: as written, or relative integrals scaled to the formula.
+
+    The flag is True when a warning already states how the total compares
+    with the formula (the integrals were rescaled).
+    """
     values = [float(r.integral) for r in raws]
     relative = any(not r.absolute for r in raws) or any(abs(v - round(v)) > 0.05 for v in values)
     if not relative:
-        return values, []
+        return values, [], False
     if formula is None:
-        return values, ["1H integrals look relative and no formula was given: H counts left as written"]
+        note = "1H integrals look relative and no formula was given: H counts left as written"
+        return values, [note], False
     n_h = formula["H"]
     if n_h == 0:
         raise InputError(f"formula {formula.hill} has no H, but a 1H peak list was given")
@@ -576,7 +616,7 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
         if all(round(x) >= 1 and abs(x - round(x)) <= INTEGER_TOLERANCE for x in scaled):
             counts = [float(round(x)) for x in scaled]
             if abs(factor - 1) < 1e-9:
-                return counts, []
+                return counts, [], False
             msg = (
                 f"relative 1H integrals ({shown}) scaled ×{factor:.3g} to whole H counts "
                 f"totalling {target} H"
@@ -586,19 +626,25 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
                     f"; {formula.hill} has {n_h} H, so {n_h - target} H are not seen "
                     "(exchangeable OH/NH?)"
                 )
-            return counts, [msg]
+            return counts, [msg], True
     factor = n_h / total
     counts = [round(v * factor, 2) for v in values]
     return counts, [
         f"relative 1H integrals ({shown}) do not scale to whole numbers of H; scaled ×{factor:.3g} "
         f"to the {n_h} H of {formula.hill} as {', '.join(f'{c:g}' for c in counts[:6])}"
-    ]
+    ], True
 
 
 # ------------------------------------------------------------------- 13C
 
 
-def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
+# "2C", "2 C", "x2", "2x", "2 x CH" (× already turned into x; lower case)
+_CARBON_COUNT = re.compile(
+    r"([0-9]{1,6})\s*c|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|cq|c)"
+)
+
+
+def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
     """One comma-separated chunk: one or more ``shift [(details)]`` separated by spaces."""
     out = []
     i = 0
@@ -629,13 +675,13 @@ def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
 
 def _c13_details(raw: RawC13, body: str, body_pos: int) -> None:
     parts = _split_flat(body, body_pos)
-    has_j = any(J_START_RE.fullmatch(p) and p.strip().upper().startswith(("J", "1J", "2J", "3J", "4J")) for p, _ in parts)
+    has_j = any(J_START_RE.fullmatch(p) for p, _ in parts)
     for part, ppos in parts:
         at = f"position {ppos + 1}"
         key = " ".join(part.lower().replace("×", " x ").split())
         if not key:
             continue
-        m = re.fullmatch(r"([0-9]{1,6})\s*c(?:\s*x)?|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|c|cq)", key)
+        m = _CARBON_COUNT.fullmatch(key)
         if m:
             digits = next(g for g in m.groups()[:4] if g)
             raw.carbons = int(digits)

@@ -365,7 +365,9 @@ def predict_command(
     for w in result.warnings:
         warn(w)
     if as_json:
-        emit_json(result.to_json())
+        doc = result.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
         return
     typer.echo(render_prediction(result, field_mhz=field))
     typer.echo("")

@@ -19,6 +19,7 @@ def test_done_when_json() -> None:
     assert result.exit_code == 0, result.output
     doc = json.loads(result.stdout)
     assert doc["smiles"] == "CCOC(C)=O"
+    assert doc["caution"] == CAUTION
     envs = {tuple(e["atoms"]): e for e in doc["environments"]}
     assert len(envs) == 3
     for atoms, (shift, mult) in {(1,): (4.12, "q"), (4,): (2.05, "s"), (0,): (1.26, "t")}.items():

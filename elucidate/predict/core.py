@@ -46,6 +46,11 @@ SOLVENTS: dict[str, str] = {
 #: from memory).  Aromatic rings are read first order down to Δν/J = 1.
 FIRST_ORDER_MIN_RATIO = 6.0
 
+#: Aromatic H of one ring (three or more H environments) predicted within this
+#: range overlap and are reported as m, as chemists do (e.g. the five H of
+#: toluene; common practice).
+AROMATIC_OVERLAP_PPM = 0.15
+
 #: Solvents whose deuterium exchanges with OH/NH/SH.
 _EXCHANGING = {"CD3OD", "D2O"}
 
@@ -136,7 +141,7 @@ def _parse(smiles: str) -> Any:
     return mol
 
 
-@functools.lru_cache(maxsize=8192)
+@functools.lru_cache(maxsize=2048)
 def _cached(smiles: str, solvent: str | None, field: float | None, warnings: tuple[str, ...]) -> Prediction:
     return _predict(_parse(smiles), smiles, solvent, field, warnings)
 
@@ -180,6 +185,15 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
             dia = diastereotopic(g, rk, s.atom, centres)
         dia_env.append(dia)
     fld = field or DEFAULT_FIELD_MHZ
+    # spread of predicted shifts over the H environments of each aromatic ring system
+    ring_shifts: dict[frozenset[int], list[float]] = {}
+    for e, ks in enumerate(members):
+        s0, kind0 = site_list[ks[0]]
+        if kind0 == "aromatic" and s0.atom in g.aro_system:
+            ring_shifts.setdefault(g.aro_system[s0.atom], []).append(shifts[e].shift)
+    # (a ring with two H environments, such as a para-disubstituted one, is read as
+    # two doublets however close they are)
+    ring_spread = {k: max(v) - min(v) for k, v in ring_shifts.items() if len(v) > 2}
     jtab = tables.couplings()
     envs: list[Environment] = []
     for e, ks in enumerate(members):
@@ -214,6 +228,12 @@ def _predict(mol: Any, smiles: str, solvent: str | None, field: float | None,
             second = True
             deriv.append("note: ring H coupled to ring H (six-membered or larger ring): "
                          "conformers make the pattern complex, reported as m (common practice)")
+        elif not second and kind == "aromatic" and cps:
+            spread = ring_spread.get(g.aro_system.get(s.atom, frozenset()), 1.0)
+            if spread < AROMATIC_OVERLAP_PPM:
+                second = True
+                deriv.append(f"note: all H of this ring predicted within {spread:.2f} ppm: "
+                             "overlapping, reported as m (common practice)")
         mult = "s" if sh.exchangeable else pattern([(c.h_count, c.j_hz) for c in cps], second)
         if sh.exchangeable and solvent in _EXCHANGING:
             deriv.append(f"note: exchanges with {solvent}; usually not observed")

@@ -24,7 +24,7 @@ def render_prediction(p: Prediction, *, field_mhz: float | None = None) -> str:
 
     lines = [f"Predicted 1H NMR of {p.smiles} (additive increments; first-order at "
              f"{field_mhz or DEFAULT_FIELD_MHZ:g} MHz)", ""]
-    head = f"{'env':>3}  {'atoms':<12} {'H':>2}  {'δ/ppm':>6} {'±':>5}  {'mult':<5} {'label':<18} flags"
+    head = f"{'env':>3}  {'atoms':<12} {'H':>2}  {'δ/ppm':>6} {'±':>5}  {'mult':<5} {'label':<26} flags"
     lines.append(head)
     lines.append("-" * len(head))
     for e in p.environments:
@@ -35,7 +35,7 @@ def render_prediction(p: Prediction, *, field_mhz: float | None = None) -> str:
             flags.append("diastereotopic")
         atoms = ",".join(str(a) for a in e.atoms)
         lines.append(f"{e.index:>3}  {atoms:<12} {e.h_count:>2}  {e.shift:>6.2f} {e.uncertainty:>5.2f}  "
-                     f"{e.multiplicity:<5} {e.label:<18} {' '.join(flags)}")
+                     f"{e.multiplicity:<5} {e.label:<26} {' '.join(flags)}")
         lines.append(f"     partners: {_partners(e.index, p)}")
         lines.append(f"     derivation: {' '.join(d for d in e.derivation if not d.startswith('note:') and not d.startswith('exchangeable'))}")
         for d in e.derivation:

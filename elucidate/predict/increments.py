@@ -34,8 +34,9 @@ from typing import Any
 from elucidate.predict import tables
 from elucidate.predict.graph import FALLBACK, HALOGENS, MolGraph, alkyl_subtype, substituent
 
-__all__ = ["Shift", "Site", "sp3_shift", "alkene_shift", "aromatic_shift", "special_shift",
-           "hetero_h_shift", "lookup", "NAMES"]
+__all__ = ["Shift", "Site", "NAMES", "lookup", "special_shift", "sp3_shift", "alkene_shift",
+           "aromatic_shift", "parent_position", "ring_distances", "hetero_h_shift",
+           "aldehyde_shift", "alkyne_shift"]
 
 #: How a class key reads in a derivation.
 NAMES: dict[str, str] = {
@@ -143,6 +144,9 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
 
     alpha = [(x, key(c, x)) for x in g.nbrs[c]]
     func = [(x, k) for x, k in alpha if k != "R"]
+    group = label
+    if func:
+        label = f"{group} next to {', '.join(NAMES.get(k, k) for _, k in func)}"
     notes: list[str] = []
     unc = 0.15
     terms: list[tuple[float, str]] = []
@@ -182,7 +186,7 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
     if nh == 4:
         b = 0.23
         notes.append("note: methane itself (0.23, from memory)")
-    terms.append((b, f"{label} base"))
+    terms.append((b, f"{group} base"))
     for x, k in func:
         row, used, fell = lookup(table, k)
         if row is None:
@@ -479,7 +483,7 @@ def hetero_h_shift(g: MolGraph, x: int, solvent: str | None) -> Shift:
     if e == "O":
         label = "OH"
         if not others:
-            return special_shift("OH_other", label, solvent, "XH", note="note: water / hydroxide")
+            return special_shift("water", "H2O", solvent, "XH")
         y = others[0]
         if g.el[y] == "C":
             if g.arom[y]:

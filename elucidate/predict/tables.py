@@ -13,6 +13,8 @@ import io
 from dataclasses import dataclass
 from importlib import resources
 
+from elucidate.errors import ElucidateError
+
 __all__ = [
     "Row",
     "read_table",
@@ -70,7 +72,7 @@ def read_table(name: str) -> tuple[tuple[dict[str, str], ...], tuple[str, ...]]:
     rows = tuple(dict(r) for r in reader)
     for r in rows:
         if not r.get("source"):
-            raise RuntimeError(f"data file {name}: a row has no source: {r}")
+            raise ElucidateError(f"data file {name}: a row has no source: {r}")
     return rows, tuple(reader.fieldnames or ())
 
 

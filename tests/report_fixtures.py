@@ -85,7 +85,7 @@ def _ethyl_acetate_problem() -> Problem:
         solvent="CDCl3",
         field_mhz=400.0,
         name="Sample EA-1 (demo)",
-        description="Volatile solvent residue from the pilot still, Lindqvist Glassworks (invented).",
+        description="Volatile solvent residue from a teaching-lab still (invented scenario).",
     )
 
 

@@ -120,7 +120,228 @@ def _root(
 # ---------------------------------------------------------------- read (parse)
 
 
+@app.command("read")
+@user_errors
+def read_command(
+    case: CaseArg = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Read an unknown and show what was understood: formula, DoU, the 1H and
+    13C signals normalised, solvent, field, constraints and warnings."""
+    from elucidate.parse import load_problem
+    from elucidate.parse.readback import readback_json, readback_text
+
+    problem = load_problem(
+        case,
+        formula=formula,
+        h1=h1,
+        c13=c13,
+        solvent=solvent,
+        field_mhz=field,
+        require=tuple(require or ()),
+        forbid=tuple(forbid or ()),
+    )
+    for message in problem.warnings:
+        warn(message)
+    if json_out:
+        emit_json(readback_json(problem))
+    else:
+        typer.echo(readback_text(problem))
+
+
 # ------------------------------------------------------- isomers (generate)
+
+
+def _formula_arg(text: str):  # type: ignore[no-untyped-def]
+    """Parse FORMULA with the parse stage when it is there, else a small local reader."""
+    try:
+        from elucidate.parse import parse_formula  # type: ignore[attr-defined]
+    except ImportError:
+        parse_formula = _read_formula
+    return parse_formula(text)
+
+
+def _read_formula(text: str):  # type: ignore[no-untyped-def]
+    # Minimal private reader, to be replaced by elucidate.parse.parse_formula.
+    import re
+
+    from elucidate.model import ELEMENTS, Formula
+
+    compact = text.replace(" ", "")
+    counts: dict[str, int] = {}
+    pos = 0
+    for m in re.finditer(r"([A-Z][a-z]?)(\d*)", compact):
+        if m.start() != pos:
+            raise InputError(f"formula {text!r}: cannot read {compact[pos:m.start()]!r} at position {pos + 1}")
+        el, num = m.group(1), m.group(2)
+        if el not in ELEMENTS:
+            raise InputError(f"formula {text!r}: unknown element {el!r} at position {m.start() + 1}")
+        counts[el] = counts.get(el, 0) + (int(num) if num else 1)
+        pos = m.end()
+    if pos != len(compact) or not counts:
+        raise InputError(f"formula {text!r}: cannot read {compact[pos:]!r} at position {pos + 1}")
+    order = ["C", "H"] + sorted(el for el in counts if el not in ("C", "H"))
+    f = Formula(tuple((el, counts[el]) for el in order if counts.get(el)))
+    if f.dou_twice < 0 or f.dou_twice % 2:
+        raise InputError(f"formula {text!r}: degree of unsaturation {f.dou} is not a whole number >= 0")
+    return f
+
+
+@app.command()
+@user_errors
+def isomers(
+    formula: Annotated[str, typer.Argument(help="Molecular formula, e.g. C8H10.")],
+    count_only: Annotated[bool, typer.Option("--count", help="Print only the number of structures.")] = False,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    max_structures: Annotated[
+        Optional[int], typer.Option("--max-structures", help="Stop after N structures.", min=1)
+    ] = None,
+    time_limit: Annotated[
+        Optional[float], typer.Option("--time-limit", help="Stop after S seconds.", min=0.0)
+    ] = None,
+    workers: Annotated[int, typer.Option("--workers", help="Processes of a local pool.", min=1)] = 1,
+    hypervalent_s: Annotated[bool, typer.Option("--hypervalent-s", help="Allow S(IV) and S(VI).")] = False,
+    pentavalent_p: Annotated[bool, typer.Option("--pentavalent-p", help="Allow P(V).")] = False,
+    charge_separated: Annotated[
+        bool, typer.Option("--charge-separated", help="Allow nitro groups and N-oxides as N+-O-.")
+    ] = False,
+    no_small_rings: Annotated[bool, typer.Option("--no-small-rings", help="No 3- or 4-membered rings.")] = False,
+    no_cumulenes: Annotated[
+        bool, typer.Option("--no-cumulenes", help="No carbon with two double bonds (allenes, ketenes ...).")
+    ] = False,
+    no_hetero_hetero: Annotated[
+        bool, typer.Option("--no-hetero-hetero", help="No single bond between two heteroatoms.")
+    ] = False,
+    min_ring_triple: Annotated[
+        int, typer.Option("--min-ring-triple", help="Triple bonds only in rings of at least this size (0: any).", min=0)
+    ] = 0,
+    max_ring_size: Annotated[
+        Optional[int], typer.Option("--max-ring-size", help="Largest ring size allowed.", min=3)
+    ] = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Every constitutional isomer of FORMULA, once each, as canonical SMILES (one per line).
+
+    Connected, neutral, closed-shell constitutions without stereo; valences
+    C 4, N 3, O 2, S 2, halogens 1, Si 4, P 3; bond orders 1-3. Kekulé forms
+    of one aromatic compound are one structure.
+    """
+    import time
+
+    from elucidate.errors import LimitReached
+    from elucidate.generate import Limits, Options, Spec, Stats, count, generate
+    from elucidate.generate.isomers import parts_smiles, validate_spec
+
+    spec = Spec(
+        formula=_formula_arg(formula),
+        require=tuple(require or ()),
+        forbid=tuple(forbid or ()),
+        options=Options(
+            hypervalent_s=hypervalent_s,
+            pentavalent_p=pentavalent_p,
+            charge_separated=charge_separated,
+            no_small_rings=no_small_rings,
+            no_cumulenes=no_cumulenes,
+            no_hetero_hetero=no_hetero_hetero,
+            min_ring_triple=min_ring_triple,
+            max_ring_size=max_ring_size,
+        ),
+    )
+    validate_spec(spec)
+    limits = Limits(max_structures=max_structures, time_limit_s=time_limit)
+    stats = Stats()
+    progress = _Progress()
+    smiles: list[str] = []
+    if count_only:
+        n = count(spec, limits=limits, workers=workers, stats=stats)
+    elif workers > 1:
+        from concurrent.futures import ProcessPoolExecutor
+
+        nparts = workers * 8
+        n = 0
+        with ProcessPoolExecutor(max_workers=workers) as pool:
+            args = [(spec, limits, (i, nparts)) for i in range(nparts)]
+            for part, st in pool.map(parts_smiles, args):
+                stats.add(st)
+                for s in part:
+                    if max_structures is not None and n >= max_structures:
+                        stats.stopped_by = "max_structures"
+                        break
+                    n += 1
+                    if json_out:
+                        smiles.append(s)
+                    else:
+                        typer.echo(s)
+                    progress.tick(n)
+    else:
+        n = 0
+        try:
+            for s in generate(spec, limits=limits, stats=stats):
+                n += 1
+                if json_out:
+                    smiles.append(s)
+                else:
+                    typer.echo(s)
+                progress.tick(n)
+        except LimitReached:
+            pass
+    progress.done()
+    if json_out:
+        doc: dict[str, Any] = {
+            "formula": spec.formula.hill,
+            "count": n,
+            "complete": stats.stopped_by is None,
+            "stopped_by": stats.stopped_by,
+            "caution": CAUTION,
+        }
+        if not count_only:
+            doc["smiles"] = smiles
+        emit_json(doc)
+    elif count_only:
+        typer.echo(str(n))
+    if stats.stopped_by:
+        what = "structure limit" if stats.stopped_by == "max_structures" else "time limit"
+        typer.echo(f"stopped: {what} reached after {n} structures; the list is incomplete", err=True)
+        raise typer.Exit(EXIT_LIMIT)
+    _ = time
+
+
+class _Progress:
+    """A structure counter on stderr, shown only for runs longer than a second."""
+
+    def __init__(self) -> None:
+        import time
+
+        self._t0 = time.monotonic()
+        self._shown = False
+        self._next = 0.0
+        self._tty = sys.stderr.isatty()
+
+    def tick(self, n: int) -> None:
+        if not self._tty or n % 1000:
+            return
+        import time
+
+        now = time.monotonic() - self._t0
+        if now > 1.0 and now > self._next:
+            sys.stderr.write(f"\r{n} structures ...")
+            sys.stderr.flush()
+            self._shown = True
+            self._next = now + 0.5
+
+    def done(self) -> None:
+        if self._shown:
+            sys.stderr.write("\r" + " " * 40 + "\r")
+            sys.stderr.flush()
+
 
 
 # ---------------------------------------------------------- predict (predict)
@@ -154,6 +375,246 @@ def predict_command(
 
 
 # ------------------------------------------------------ solve, explain (score)
+
+
+TopOpt = Annotated[int, typer.Option("--top", help="Number of ranked candidates to show.", min=1)]
+TimeLimitOpt = Annotated[
+    Optional[float],
+    typer.Option("--time-limit", help="Stop the search after this many seconds (best so far are shown)."),
+]
+MaxStructuresOpt = Annotated[
+    Optional[int],
+    typer.Option("--max-structures", help="Stop after generating this many structures.", min=1),
+]
+
+
+ReportOpt = Annotated[
+    Optional[Path],
+    typer.Option(
+        "--report",
+        metavar="FILE.html",
+        dir_okay=False,
+        help="Also write one self-contained HTML page (drawings, spectra, evidence per signal) to this file.",
+    ),
+]
+SdfOpt = Annotated[
+    Optional[Path],
+    typer.Option(
+        "--sdf",
+        metavar="FILE",
+        dir_okay=False,
+        help="Also write the ranked candidates (rank, score, deviations as SD properties) to this SD file.",
+    ),
+]
+
+
+def _check_output(path: Path | None, option: str) -> None:
+    """Fail before a long search if an output file cannot be written."""
+    if path is None:
+        return
+    if path.is_dir():
+        raise InputError(f"{option} {path}: is a directory, not a file")
+    parent = path.parent if str(path.parent) else Path(".")
+    if not parent.is_dir():
+        raise InputError(f"{option} {path}: directory '{parent}' does not exist")
+
+
+def _readback(problem: Any) -> str:
+    from elucidate.parse.readback import readback_text
+
+    text = readback_text(problem).rstrip()
+    if text.endswith(CAUTION):
+        text = text[: -len(CAUTION)].rstrip()
+    return text
+
+
+def _fmt_assignments(candidate: Any, problem: Any) -> list[str]:
+    lines = ["    signal            env  nH  predicted  mult (pred/obs)  cost"]
+    for a in candidate.assignments:
+        if a.signal is None:
+            where = "not observed"
+        else:
+            s = problem.h1[a.signal]
+            where = f"#{a.signal + 1} {s.shift:6.2f}"
+        obs_mult = a.multiplicity_observed or "-"
+        lines.append(
+            f"    {where:<17} {a.environment:>3}  {a.h_count:>2}  {a.predicted:9.2f}  "
+            f"{a.multiplicity_predicted + '/' + obs_mult:<15}  {a.cost:.2f}"
+        )
+    return lines
+
+
+def solve_text(result: Any, *, details: int = 3) -> str:
+    """Plain-text report of a :class:`SolveResult` (read-back, ranked table,
+    rejection summary, caution)."""
+    lines = [_readback(result.problem), ""]
+    if not result.complete:
+        lines += ["!" * 72, "! INCOMPLETE SEARCH: " + (result.stopped_by or "hypotheses capped")
+                  + " — best so far shown; the answer may be missing.", "!" * 72, ""]
+    for r in result.relaxed:
+        lines.append(f"Relaxed      {r}")
+    if result.relaxed:
+        lines.append("")
+    counts = dict(result.counts)
+    lines.append(
+        f"Searched     {counts.get('unique', 0)} structures ({counts.get('rejected', 0)} rejected, "
+        f"{counts.get('ranked', 0)} ranked) from {counts.get('generator_runs', 0)} generator runs; "
+        f"complete: {'yes' if result.complete else 'NO'}"
+    )
+    lines.append("")
+    if not result.candidates:
+        lines.append("No candidate fits the data.")
+    else:
+        lines.append(" rank  score   verdict      SMILES")
+        for c in result.candidates:
+            lines.append(f" {c.rank:>4}  {c.score:6.2f}  {c.verdict:<11}  {c.smiles}")
+        for c in result.candidates[:details]:
+            lines += ["", f"  #{c.rank} {c.smiles}"]
+            lines += _fmt_assignments(c, result.problem)
+            lines += [f"    note: {n}" for n in c.notes]
+    if result.rejected_counts:
+        lines += ["", "Rejected (count  reason)"]
+        lines += [f"  {n:>5}  {reason}" for reason, n in result.rejected_counts]
+    lines += ["", CAUTION]
+    return "\n".join(lines)
+
+
+def explain_text(explanation: Any) -> str:
+    """Plain-text report of an :class:`Explanation`."""
+    e = explanation
+    lines = [_readback(e.problem), "", f"Structure    {e.smiles}", f"Verdict      {e.verdict}"]
+    if e.rank is not None:
+        lines.append(f"Rank         {e.rank} of {e.total} candidates")
+    else:
+        lines.append(f"Rank         not among the {e.total} candidates generated under the hard constraints")
+    if not e.complete:
+        lines.append("!! INCOMPLETE SEARCH: the rank is among the structures seen")
+    if e.candidate is not None:
+        lines += ["", f"Score        {e.candidate.score:.2f}"]
+        lines += _fmt_assignments(e.candidate, e.problem)
+    if e.reasons:
+        lines += ["", "Reasons"]
+        lines += [f"  - {r}" for r in e.reasons]
+    lines += ["", CAUTION]
+    return "\n".join(lines)
+
+
+def _load(case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any) -> Any:
+    from elucidate.parse import load_problem
+
+    problem = load_problem(
+        case, formula=formula, h1=h1, c13=c13, solvent=solvent, field_mhz=field,
+        require=tuple(require or ()), forbid=tuple(forbid or ()),
+    )
+    for message in problem.warnings:
+        warn(message)
+    return problem
+
+
+@app.command("solve")
+@user_errors
+def solve_command(
+    case: CaseArg = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    top: TopOpt = 10,
+    time_limit: TimeLimitOpt = None,
+    max_structures: MaxStructuresOpt = None,
+    report: ReportOpt = None,
+    sdf: SdfOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Rank every structure consistent with a formula and a 1H (13C) peak list.
+
+    A search stopped by --time-limit or --max-structures still exits 0: the
+    output says INCOMPLETE prominently and JSON has "complete": false.
+    """
+    from elucidate.report import render_solve, stderr_progress, write_html, write_sdf
+    from elucidate.solve import solve
+
+    _check_output(report, "--report")
+    _check_output(sdf, "--sdf")
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    with stderr_progress() as progress:
+        result = solve(
+            problem, top=top, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+        )
+    if not result.complete:
+        warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
+    if report is not None:
+        write_html(result, report)
+        typer.echo(f"wrote {report}", err=True)
+    if sdf is not None:
+        write_sdf(result, sdf)
+        typer.echo(f"wrote {sdf}", err=True)
+    if json_out:
+        doc = result.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
+    else:
+        render_solve(result)
+
+
+@app.command("explain")
+@user_errors
+def explain_command(
+    first: Annotated[
+        str, typer.Argument(metavar="[CASE.toml] SMILES", help="The structure as SMILES, optionally after a TOML case file.",
+                            show_default=False)
+    ],
+    second: Annotated[Optional[str], typer.Argument(hidden=True, metavar="[SMILES]", show_default=False)] = None,
+    case: Annotated[
+        Optional[Path],
+        typer.Option("--case", help="TOML case file (options override its keys).", dir_okay=False),
+    ] = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    time_limit: TimeLimitOpt = None,
+    max_structures: MaxStructuresOpt = None,
+    report: ReportOpt = None,
+    sdf: SdfOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Say whether one structure fits the data (consistent / poor fit /
+    rejected), with its assignment, the reasons, and its rank."""
+    from elucidate.report import render_explain, stderr_progress, write_explain_html, write_explain_sdf
+    from elucidate.solve import explain
+
+    _check_output(report, "--report")
+    _check_output(sdf, "--sdf")
+    smiles = first
+    if second is not None:
+        if case is not None:
+            raise InputError(f"explain: give the case file once (--case {case} and {first!r})")
+        case, smiles = Path(first), second
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    with stderr_progress() as progress:
+        explanation = explain(
+            problem, smiles, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+        )
+    if report is not None:
+        write_explain_html(explanation, report)
+        typer.echo(f"wrote {report}", err=True)
+    if sdf is not None:
+        write_explain_sdf(explanation, sdf)
+        typer.echo(f"wrote {sdf}", err=True)
+    if json_out:
+        doc = explanation.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
+    else:
+        render_explain(explanation)
+
 
 
 def main() -> None:

@@ -31,6 +31,7 @@ __all__ = [
     "Candidate",
     "Rejection",
     "SolveResult",
+    "Explanation",
     "multiplicity_pattern",
 ]
 
@@ -365,3 +366,42 @@ class SolveResult(_JsonMixin):
         )
         return out
 
+
+
+@dataclass(frozen=True)
+class Explanation(_JsonMixin):
+    """Where one structure the chemist has in mind stands (``explain``).
+
+    ``verdict`` is ``consistent``, ``poor fit`` or ``rejected``; ``rank`` is
+    its place among the candidates the search generated (None if the hard
+    constraints exclude it), out of ``total``; ``reasons`` are sentences.
+    """
+
+    problem: Problem
+    smiles: str
+    verdict: str
+    rank: int | None
+    total: int
+    candidate: Candidate | None
+    rejection: Rejection | None
+    reasons: tuple[str, ...]
+    complete: bool
+    warnings: tuple[str, ...] = ()
+
+    def to_json(self) -> dict[str, Any]:
+        out = self.problem.formula.to_json()
+        out.update(
+            {
+                "smiles": self.smiles,
+                "verdict": self.verdict,
+                "rank": self.rank,
+                "total": self.total,
+                "complete": self.complete,
+                "reasons": list(self.reasons),
+                "candidate": self.candidate.to_json() if self.candidate else None,
+                "rejection": self.rejection.to_json() if self.rejection else None,
+                "input": self.problem.to_json(),
+                "warnings": list(self.warnings),
+            }
+        )
+        return out

@@ -1,0 +1,373 @@
+"""Public entry points: stream or count the constitutions of a :class:`Spec`.
+
+The search is skeleton-first: for each label multiset (the heavy atoms with
+their valence states), every skeleton graph is decorated with labels and
+bond orders (see :mod:`elucidate.generate.skeletons` and
+:mod:`elucidate.generate.decorate`).  The list of (label multiset,
+skeleton) pairs is the unit of work; ``part=(i, n)`` takes the i-th of n
+contiguous blocks of it, so parts are disjoint and their union is the
+whole search, in the same order as an unsplit run.
+"""
+
+from __future__ import annotations
+
+import functools
+import time
+from dataclasses import replace
+from itertools import product
+from typing import Iterator
+
+from elucidate.errors import InputError, LimitReached
+from elucidate.generate.decorate import Filters, Label, Problem, Structure, decorate, structure_mol
+from elucidate.generate.fragments import FragmentPlan, plan_fragments
+from elucidate.generate.skeletons import Skeleton, skeletons
+from elucidate.generate.spec import Limits, Spec, Stats
+from elucidate.model import VALENCE
+
+__all__ = ["generate", "count", "validate_spec"]
+
+_SUPPORTED = ("C", "H", "N", "O", "S", "P", "F", "Cl", "Br", "I", "Si")
+
+
+def validate_spec(spec: Spec) -> None:
+    """Raise :class:`InputError` if the spec cannot describe a neutral molecule."""
+    counts = spec.formula.as_dict()
+    for el, k in counts.items():
+        if el not in _SUPPORTED:
+            raise InputError(f"formula {spec.formula.hill}: element {el!r} is not supported")
+        if k < 0:
+            raise InputError(f"formula {spec.formula.hill}: negative count for {el}")
+    if sum(k for el, k in counts.items() if el != "H") < 1:
+        raise InputError(f"formula {spec.formula.hill}: needs at least one heavy atom")
+    for a in spec.atoms or ():
+        if a.element not in _SUPPORTED or a.element == "H":
+            raise InputError(f"atom spec {a.element!r}: not a supported heavy element")
+        if a.h_count < 0:
+            raise InputError(f"atom spec {a.element}H{a.h_count}: negative H count")
+    for s in (*spec.require, *spec.forbid):
+        _smarts(s)
+    plan_fragments(spec)  # raises on a bad fragment or a formula mismatch
+
+
+@functools.cache
+def _smarts(text: str):  # type: ignore[no-untyped-def]
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    try:
+        q = Chem.MolFromSmarts(text)
+    finally:
+        RDLogger.EnableLog("rdApp.*")
+    if q is None:
+        raise InputError(f"SMARTS {text!r} could not be parsed")
+    return q
+
+
+def _element_states(el: str, spec: Spec) -> list[Label]:
+    """Valence states an element may take in a plain formula search."""
+    o = spec.options
+    v = VALENCE[el]
+    states = [Label(el, 0, v, 0, v)]
+    if el == "S" and o.hypervalent_s:
+        states += [Label("S", 0, 4, 4, 4), Label("S", 0, 6, 6, 6)]
+    if el == "P" and o.pentavalent_p:
+        states.append(Label("P", 0, 5, 4, 5))
+    return states
+
+
+def _splits(total: int, parts: int) -> Iterator[tuple[int, ...]]:
+    if parts == 1:
+        yield (total,)
+        return
+    for first in range(total, -1, -1):
+        for rest in _splits(total - first, parts - 1):
+            yield (first, *rest)
+
+
+def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
+    """The label multisets of a spec (several when valence states vary)."""
+    f = spec.formula.as_dict()
+    per_group: list[list[list[tuple[Label, int]]]] = []
+    if spec.atoms is None:
+        f = {el: k - plan.element_counts.get(el, 0) for el, k in f.items()}
+        els = [el for el in f if el != "H" and f[el] > 0]
+        cs = spec.options.charge_separated and f.get("N", 0) > 0 and f.get("O", 0) > 0
+        for el in els:
+            if cs and el in ("N", "O"):
+                continue
+            states = _element_states(el, spec)
+            per_group.append(
+                [[(s, k) for s, k in zip(states, split) if k] for split in _splits(f[el], len(states))]
+            )
+        if cs:
+            # k of the N become N+ and k of the O become O- (bonded pairs)
+            opts = []
+            for k in range(min(f["N"], f["O"]) + 1):
+                opt = [
+                    (Label("N", 0, 3, 0, 3), f["N"] - k),
+                    (Label("N", 1, 4, 4, 4), k),
+                    (Label("O", 0, 2, 0, 2), f["O"] - k),
+                    (Label("O", -1, 1, 1, 1), k),
+                ]
+                opts.append([x for x in opt if x[1]])
+            per_group.append(opts)
+        h_free = f.get("H", 0)
+    else:
+        groups: dict[tuple[str, int], list] = {}  # type: ignore[type-arg]
+        for a in spec.atoms:
+            groups.setdefault((a.element, a.h_count), []).append(a.neighbour_h)
+        for (el, h), sets in sorted(groups.items()):
+            v = VALENCE[el]
+            states = [v]
+            if el == "S" and spec.options.hypervalent_s and h == 0:
+                states += [4, 6]
+            if el == "P" and spec.options.pentavalent_p and h <= 1:
+                states.append(5)
+            gopts = []
+            for split in _splits(len(sets), len(states)):
+                opt: list[tuple[Label, int]] | None = []
+                start = 0
+                for val, k in zip(states, split):
+                    if k and opt is not None:
+                        bs = val - h
+                        if bs < 0:
+                            opt = None
+                            break
+                        opt.append((Label(el, 0, val, bs, bs, tuple(sets[start : start + k])), k))
+                    start += k
+                if opt is not None:
+                    gopts.append(opt)
+            if not gopts:
+                return []
+            per_group.append(gopts)
+        h_free = 0
+    out: list[Problem] = []
+    for combo in product(*per_group) if per_group else [()]:
+        pairs = [p for grp in combo for p in grp]
+        pairs += plan.unit_labels
+        pairs.sort(key=lambda p: _label_key(p[0]))
+        labels = tuple(p[0] for p in pairs)
+        counts = tuple(p[1] for p in pairs)
+        if spec.atoms is None:
+            total_bs = sum(lab.valence * k for lab, k in pairs if not lab.is_unit) - h_free
+            total_bs += sum(lab.bs_lo * k for lab, k in pairs if lab.is_unit)
+        else:
+            total_bs = sum(lab.bs_lo * k for lab, k in pairs)
+        if total_bs < 0 or total_bs % 2:
+            continue
+        out.append(Problem(labels, counts, total_bs))
+    return out
+
+
+def _label_key(lab: Label) -> tuple:  # type: ignore[type-arg]
+    return (lab.symbol, lab.charge, lab.valence, lab.bs_lo, lab.bs_hi, str(lab.nh_sets))
+
+
+@functools.lru_cache(maxsize=64)
+def _skeleton_list(
+    n: int, max_edges: int, caps: tuple[int, ...], girth5: bool, max_ring: int | None
+) -> tuple[Skeleton, ...]:
+    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5)
+    if max_ring is not None:
+        sks = [
+            s
+            for s in sks
+            if all(r == 0 or r <= max_ring for r in s.edge_smallest_ring)
+        ]
+    return tuple(sks)
+
+
+def _work(spec: Spec) -> tuple[list[Problem], list[tuple[int, Skeleton]], FragmentPlan]:
+    plan = plan_fragments(spec)
+    probs = _problems(spec, plan)
+    items: list[tuple[int, Skeleton]] = []
+    o = spec.options
+    for pi, prob in enumerate(probs):
+        n = prob.n
+        max_edges = prob.total_bs // 2 - plan.internal_extra
+        girth5 = o.no_small_rings and not plan.units
+        sks = _skeleton_list(n, max_edges, prob.caps, girth5, None if plan.units else o.max_ring_size)
+        items += [(pi, s) for s in sks]
+    return probs, items, plan
+
+
+def _structures(
+    spec: Spec, part: tuple[int, int] | None, stats: Stats, limits: Limits | None
+) -> Iterator[Structure]:
+    probs, items, plan = _work(spec)
+    if part is not None:
+        i, k = part
+        if not (0 <= i < k):
+            raise InputError(f"part {i} of {k}: need 0 <= i < n")
+        lo, hi = len(items) * i // k, len(items) * (i + 1) // k
+        items = items[lo:hi]
+    o = spec.options
+    filters = Filters(o.no_hetero_hetero, o.no_cumulenes, o.min_ring_triple)
+    req = [_smarts(s) for s in spec.require]
+    forb = [_smarts(s) for s in spec.forbid]
+    visit = [0]
+    deadline = None
+    if limits is not None and limits.time_limit_s is not None:
+        deadline = time.monotonic() + limits.time_limit_s
+    max_n = limits.max_structures if limits is not None else None
+
+    def colour_seen(_c: tuple[int, ...]) -> None:
+        stats.colourings += 1
+
+    try:
+        for pi, sk in items:
+            stats.skeletons += 1
+            for st in decorate(sk, probs[pi], filters, visit, colour_seen):
+                stats.bond_graphs += 1
+                if plan.units:
+                    st = plan.expand(st, spec)
+                    if st is None:
+                        continue
+                if req or forb:
+                    mol = structure_mol(st)
+                    if any(not mol.HasSubstructMatch(q) for q in req):
+                        continue
+                    if any(mol.HasSubstructMatch(q) for q in forb):
+                        continue
+                if max_n is not None and stats.emitted >= max_n:
+                    stats.stopped_by = "max_structures"
+                    return
+                stats.emitted += 1
+                yield st
+                if deadline is not None and time.monotonic() > deadline:
+                    stats.stopped_by = "time_limit"
+                    return
+            if deadline is not None and time.monotonic() > deadline:
+                stats.stopped_by = "time_limit"
+                return
+    finally:
+        stats.visited += visit[0]
+
+
+def generate(
+    spec: Spec,
+    *,
+    limits: Limits | None = None,
+    part: tuple[int, int] | None = None,
+    stats: Stats | None = None,
+) -> Iterator[str]:
+    """Stream the canonical SMILES of every constitution of ``spec``, once each.
+
+    Parameters
+    ----------
+    spec : Spec
+        Formula, optional atom list and fragments, SMARTS, options.
+    limits : Limits, optional
+        Stop after so many structures or seconds.
+    part : (int, int), optional
+        ``(i, n)``: only the i-th of n disjoint parts of the search.
+    stats : Stats, optional
+        Filled in with counters (partial structures visited, emitted ...).
+
+    Yields
+    ------
+    str
+        RDKit canonical SMILES (aromatic form).
+
+    Raises
+    ------
+    InputError
+        Bad spec (unknown element, bad SMARTS or fragment, formula mismatch).
+    LimitReached
+        After yielding what was found, when a limit stopped the search;
+        ``stats.stopped_by`` says which.
+
+    Examples
+    --------
+    >>> from elucidate.model import Formula
+    >>> sorted(generate(Spec(Formula((("C", 2), ("H", 6), ("O", 1))))))
+    ['CCO', 'COC']
+    """
+    validate_spec(spec)
+    return _generate(spec, limits, part, stats if stats is not None else Stats())
+
+
+def _generate(
+    spec: Spec, limits: Limits | None, part: tuple[int, int] | None, stats: Stats
+) -> Iterator[str]:
+    from rdkit import Chem
+
+    for st in _structures(spec, part, stats, limits):
+        yield Chem.MolToSmiles(structure_mol(st))
+    if stats.stopped_by:
+        raise LimitReached(f"stopped by {stats.stopped_by.replace('_', ' ')} after {stats.emitted} structures")
+
+
+def _count_part(args: tuple[Spec, Limits | None, tuple[int, int] | None]) -> tuple[int, Stats]:
+    spec, limits, part = args
+    st = Stats()
+    k = 0
+    for _ in _structures(spec, part, st, limits):
+        k += 1
+    return k, st
+
+
+def count(
+    spec: Spec,
+    *,
+    limits: Limits | None = None,
+    workers: int = 1,
+    stats: Stats | None = None,
+) -> int:
+    """Number of constitutions of ``spec`` (no SMILES written unless SMARTS ask).
+
+    Parameters
+    ----------
+    spec : Spec
+    limits : Limits, optional
+        When a limit stops the count, the partial count is returned and
+        ``stats.stopped_by`` is set (no exception).
+    workers : int
+        Processes of a local pool; the search is split into parts.
+    stats : Stats, optional
+        Filled in with counters.
+
+    Returns
+    -------
+    int
+
+    Examples
+    --------
+    >>> from elucidate.model import Formula
+    >>> count(Spec(Formula((("C", 6), ("H", 14)))))
+    5
+    """
+    validate_spec(spec)
+    if workers < 1:
+        raise InputError(f"workers {workers}: need at least 1")
+    stats = stats if stats is not None else Stats()
+    if workers == 1:
+        k, st = _count_part((spec, limits, None))
+        stats.add(st)
+        return k
+    from concurrent.futures import ProcessPoolExecutor
+
+    nparts = workers * 4
+    total = 0
+    with ProcessPoolExecutor(max_workers=workers) as pool:
+        for k, st in pool.map(_count_part, [(spec, limits, (i, nparts)) for i in range(nparts)]):
+            total += k
+            stats.add(st)
+    if limits is not None and limits.max_structures is not None and total > limits.max_structures:
+        total = limits.max_structures
+        stats.emitted = total
+        stats.stopped_by = "max_structures"
+    return total
+
+
+def parts_smiles(args: tuple[Spec, Limits | None, tuple[int, int]]) -> tuple[list[str], Stats]:
+    """SMILES of one part (for a process pool); returns the list and the stats."""
+    spec, limits, part = args
+    from rdkit import Chem
+
+    st = Stats()
+    out = [Chem.MolToSmiles(structure_mol(s)) for s in _structures(spec, part, st, limits)]
+    return out, st
+
+
+_ = replace  # kept for callers building variants of a spec

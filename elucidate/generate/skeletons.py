@@ -1,0 +1,319 @@
+"""Hydrogen-free skeleton graphs, each isomorphism class exactly once.
+
+A *skeleton* is a connected simple graph on the heavy atoms (or on the
+units of a constrained search: atoms and fragment gadgets) with no element
+labels and no bond orders.  Skeletons are built one vertex at a time by
+McKay's canonical augmentation [1]_: a child graph is kept only when the
+vertex just added is, up to automorphism, the one its own canonical
+deletion rule would remove; siblings from one parent are deduplicated by
+nauty certificates (pynauty).  No global set of seen graphs is kept.
+
+The canonical deletion vertex of a graph is, among the vertices whose
+removal leaves the graph connected, the one with the smallest invariant
+(degree, sum of neighbour degrees); ties are broken by nauty's canonical
+labelling (the tied vertex that comes last in canonical order).
+
+References
+----------
+.. [1] B. D. McKay, "Isomorph-free exhaustive generation", J. Algorithms
+   1998, 26, 306-324. doi:10.1006/jagm.1997.0898
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass, field
+from itertools import combinations
+from operator import itemgetter
+from typing import Callable
+
+__all__ = ["Skeleton", "skeletons"]
+
+
+@dataclass
+class Skeleton:
+    """One skeleton graph with what decoration needs.
+
+    Parameters
+    ----------
+    n : int
+        Number of vertices.
+    adj : tuple of int
+        Adjacency bitmasks, ``adj[v] >> w & 1`` when v and w are bonded.
+    """
+
+    n: int
+    adj: tuple[int, ...]
+    _group: list[tuple[int, ...]] | None = field(default=None, repr=False)
+
+    @functools.cached_property
+    def edges(self) -> tuple[tuple[int, int], ...]:
+        """Edges ``(u, v)`` with ``u < v`` in lexicographic order."""
+        return tuple(
+            (u, v) for u in range(self.n) for v in range(u + 1, self.n) if self.adj[u] >> v & 1
+        )
+
+    @functools.cached_property
+    def degrees(self) -> tuple[int, ...]:
+        return tuple(a.bit_count() for a in self.adj)
+
+    @functools.cached_property
+    def group(self) -> list[tuple[int, ...]]:
+        """All automorphisms as vertex permutations (identity included)."""
+        import pynauty
+
+        gens = pynauty.autgrp(_nauty_graph(self.n, self.adj))[0]
+        return _closure(self.n, [tuple(g) for g in gens])
+
+    @functools.cached_property
+    def ring_edges(self) -> tuple[bool, ...]:
+        """Per edge: does it lie on a cycle (is it not a bridge)?"""
+        out = []
+        for u, v in self.edges:
+            adj = list(self.adj)
+            adj[u] &= ~(1 << v)
+            adj[v] &= ~(1 << u)
+            out.append(_reach(adj, u) >> v & 1 == 1)
+        return tuple(out)
+
+    @functools.cached_property
+    def edge_smallest_ring(self) -> tuple[int, ...]:
+        """Per edge: size of the smallest ring through it (0 for a bridge)."""
+        out = []
+        for u, v in self.edges:
+            adj = list(self.adj)
+            adj[u] &= ~(1 << v)
+            adj[v] &= ~(1 << u)
+            d = _distance(adj, u, v)
+            out.append(0 if d is None else d + 1)
+        return tuple(out)
+
+
+def _nauty_graph(n: int, adj: tuple[int, ...] | list[int]):  # type: ignore[no-untyped-def]
+    import pynauty
+
+    ad = {v: [w for w in range(v + 1, n) if adj[v] >> w & 1] for v in range(n)}
+    return pynauty.Graph(n, adjacency_dict=ad)
+
+
+def _closure(n: int, gens: list[tuple[int, ...]]) -> list[tuple[int, ...]]:
+    ident = tuple(range(n))
+    seen = {ident}
+    out = [ident]
+    todo = [ident]
+    while todo:
+        p = todo.pop()
+        for g in gens:
+            q = tuple(g[i] for i in p)
+            if q not in seen:
+                seen.add(q)
+                out.append(q)
+                todo.append(q)
+    return out
+
+
+def _reach(adj: list[int], start: int) -> int:
+    seen = 1 << start
+    frontier = seen
+    while frontier:
+        nb = 0
+        f = frontier
+        while f:
+            b = f & -f
+            nb |= adj[b.bit_length() - 1]
+            f ^= b
+        nb &= ~seen
+        seen |= nb
+        frontier = nb
+    return seen
+
+
+def _distance(adj: list[int], u: int, v: int) -> int | None:
+    seen = 1 << u
+    frontier = seen
+    d = 0
+    while frontier:
+        if frontier >> v & 1:
+            return d
+        nb = 0
+        f = frontier
+        while f:
+            b = f & -f
+            nb |= adj[b.bit_length() - 1]
+            f ^= b
+        nb &= ~seen
+        seen |= nb
+        frontier = nb
+        d += 1
+    return None
+
+
+def _is_cut(adj: list[int], n: int, x: int) -> bool:
+    full = ((1 << n) - 1) & ~(1 << x)
+    start = full & -full
+    seen = start
+    frontier = start
+    while frontier:
+        nb = 0
+        f = frontier
+        while f:
+            b = f & -f
+            nb |= adj[b.bit_length() - 1]
+            f ^= b
+        nb &= full & ~seen
+        seen |= nb
+        frontier = nb
+    return seen != full
+
+
+def skeletons(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    *,
+    min_edges: int = 0,
+    girth5: bool = False,
+    on_visit: Callable[[int], None] | None = None,
+) -> list[Skeleton]:
+    """All connected simple graphs on ``n`` vertices, one per isomorphism class.
+
+    Parameters
+    ----------
+    n : int
+        Number of vertices (>= 1).
+    max_edges : int
+        Largest number of edges allowed.
+    caps : tuple of int
+        Degree caps of the atoms that will be placed on the vertices, sorted
+        from largest to smallest; a graph is kept only if its sorted degree
+        sequence fits under them (a necessary condition for any colouring).
+    min_edges : int
+        Smallest number of edges of a final graph.
+    girth5 : bool
+        Leave out graphs with a 3- or 4-membered cycle.
+    on_visit : callable, optional
+        Called with the number of candidate graphs examined per parent (for
+        the statistics of partial structures visited).
+
+    Returns
+    -------
+    list of Skeleton
+        In a deterministic order.
+    """
+    if n < 1:
+        return []
+    return [Skeleton(n, adj) for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit)]
+
+
+def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:
+    return all(d <= c for d, c in zip(sorted(deg, reverse=True), caps))
+
+
+def _skeletons(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    min_edges: int,
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+) -> list[tuple[int, ...]]:
+    import pynauty
+
+    dmax = caps[0] if caps else 0
+    if n == 1:
+        return [(0,)]
+    level: list[tuple[tuple[int, ...], int]] = [((0,), 0)]
+    for k in range(1, n):
+        nxt: list[tuple[tuple[int, ...], int]] = []
+        rem_after = n - k - 1
+        last = k == n - 1
+        for adj, e in level:
+            deg = [a.bit_count() for a in adj]
+            free = [v for v in range(k) if deg[v] < dmax]
+            maxs = min(dmax, max_edges - e - rem_after)
+            leaves = 0
+            for v in range(k):
+                if deg[v] == 1:
+                    leaves |= 1 << v
+            sib: set[bytes] = set()
+            tried = 0
+            for s in range(1, maxs + 1):
+                if last and e + s < min_edges:
+                    continue
+                for subset in combinations(free, s):
+                    tried += 1
+                    sm = 0
+                    for v in subset:
+                        sm |= 1 << v
+                    # a leaf that survives is always a better deletion vertex
+                    if s > 1 and k >= 2 and (leaves & ~sm):
+                        continue
+                    if girth5 and not _girth_ok(adj, subset):
+                        continue
+                    new = list(adj)
+                    for v in subset:
+                        new[v] |= 1 << k
+                    new.append(sm)
+                    nd = [a.bit_count() for a in new]
+                    if not _fits(nd, caps):
+                        continue
+                    inv_k = (s, sum(nd[v] for v in subset))
+                    ok = True
+                    ties: list[int] = []
+                    for x in range(k):
+                        dx = nd[x]
+                        if dx > s:
+                            continue
+                        m = new[x]
+                        sx = 0
+                        while m:
+                            b = m & -m
+                            sx += nd[b.bit_length() - 1]
+                            m ^= b
+                        ix = (dx, sx)
+                        if ix > inv_k:
+                            continue
+                        if dx > 1 and _is_cut(new, k + 1, x):
+                            continue
+                        if ix < inv_k:
+                            ok = False
+                            break
+                        ties.append(x)
+                    if not ok:
+                        continue
+                    g = _nauty_graph(k + 1, new)
+                    if ties:
+                        lab = pynauty.canon_label(g)
+                        orbits = pynauty.autgrp(g)[3]
+                        pos = {v: i for i, v in enumerate(lab)}
+                        w = max([*ties, k], key=pos.__getitem__)
+                        if orbits[w] != orbits[k]:
+                            continue
+                    cert = pynauty.certificate(g)
+                    if cert in sib:
+                        continue
+                    sib.add(cert)
+                    nxt.append((tuple(new), e + s))
+            if on_visit is not None:
+                on_visit(tried)
+        level = nxt
+    return [adj for adj, e in level if e >= min_edges]
+
+
+def _girth_ok(adj: tuple[int, ...], subset: tuple[int, ...]) -> bool:
+    """Adding a vertex joined to ``subset`` makes no 3- or 4-cycle."""
+    for i, a in enumerate(subset):
+        for b in subset[i + 1 :]:
+            if adj[a] >> b & 1 or adj[a] & adj[b]:
+                return False
+    return True
+
+
+def permuters(perms: list[tuple[int, ...]]) -> list[Callable[[tuple[int, ...]], tuple[int, ...]]]:
+    """itemgetters applying each non-identity permutation to a tuple."""
+    out = []
+    for p in perms:
+        if len(p) < 2 or p == tuple(range(len(p))):
+            continue
+        out.append(itemgetter(*p))
+    return out

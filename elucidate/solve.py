@@ -1,0 +1,747 @@
+"""One unknown through the stages: constrain → generate → predict → score.
+
+:func:`solve` returns every candidate allowed by the hard constraints, ranked
+by fit, with the reasons for each rejection; :func:`explain` tells where one
+given structure stands and why.
+
+How the pieces fit (see docs/solve-dev.md):
+
+1. ``constrain.groups`` reads the peak list as H-distribution hypotheses
+   (which heavy atoms carry which H, and how many H their carbon
+   neighbours carry — n+1 rule); ``constrain.fragments`` finds the fragments
+   the signal patterns imply (hard ones are placed as super-atoms, soft ones
+   only score).
+2. Each hypothesis becomes one generator :class:`Spec`; the streams are
+   merged and deduplicated by canonical SMILES.
+3. Each new structure is predicted, given a cheap bound (or rejected on the
+   spot with a reason), and the best few hundred get the full CP-SAT
+   assignment.  Structures whose bound cannot beat the current top ``top``
+   are not worth a full model, which keeps the ranking exact.
+4. If no candidate fits well, the hard constraints are relaxed step by step
+   (hard fragments → more hypotheses → multiplicity rules → formula only);
+   each step taken is listed in ``relaxed``.
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+import time
+from dataclasses import dataclass, field
+from typing import Any, Callable, Iterator
+
+from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
+from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, neighbour_counts, proton_groups
+from elucidate.errors import InputError, LimitReached
+from elucidate.model import Candidate, Explanation, Prediction, Problem, Rejection, SolveResult
+from elucidate.score import reasons as rs
+from elucidate.score.assign import Fit, Weights, assign, quick_bound
+
+__all__ = ["solve", "explain", "Level", "LEVELS"]
+
+#: Full CP-SAT models run on at least this many of the best-bounded structures.
+FULL_MODEL_MIN = 300
+#: Formula-only enumeration (last relaxation) stops after this many structures
+#: unless the user set --max-structures.
+FORMULA_ONLY_CAP = 20000
+#: Rejection examples kept in the result (all are counted).
+REJECTION_EXAMPLES = 25
+#: Narrow and wide plausibility margins for the H-distribution hypotheses.
+MARGIN_STRICT = 3
+MARGIN_WIDE = 8
+
+
+@dataclass(frozen=True)
+class Level:
+    """One set of hard constraints, strictest first."""
+
+    name: str
+    relaxation: str  # sentence listed in ``relaxed`` when this level runs
+    margin: int | None  # hypothesis margin; None = formula only
+    neighbour_rules: bool
+    hard_fragments: bool
+
+
+LEVELS: tuple[Level, ...] = (
+    Level("strict", "", MARGIN_STRICT, True, True),
+    Level(
+        "no-fragments",
+        "hard fragment rules turned into soft ones and less likely H-count readings admitted",
+        MARGIN_WIDE, True, False,
+    ),
+    Level(
+        "no-multiplicity",
+        "multiplicity (n+1 neighbour-H) rules dropped; multiplicities only score",
+        MARGIN_WIDE, False, False,
+    ),
+    Level(
+        "formula-only",
+        "H-count readings of the peak list dropped: every isomer of the formula considered",
+        None, False, False,
+    ),
+)
+
+
+@dataclass
+class _Entry:
+    smiles: str
+    prediction: Prediction | None
+    bound: float
+    level: int
+    fit: Fit | None = None
+    soft_cost: float = 0.0
+    soft_notes: tuple[str, ...] = ()
+
+
+@dataclass
+class _Run:
+    """Mutable bookkeeping of one solve run."""
+
+    problem: Problem
+    deadline: float | None
+    max_structures: int | None
+    weights: Weights = field(default_factory=Weights)
+    entries: dict[str, _Entry] = field(default_factory=dict)
+    rejected: dict[str, tuple[str, str]] = field(default_factory=dict)  # smiles -> (category, sentence)
+    generated: int = 0
+    specs: int = 0
+    visited: int = 0
+    stopped_by: str | None = None
+    relaxed: list[str] = field(default_factory=list)
+    warnings: list[str] = field(default_factory=list)
+    hypotheses_complete: bool = True
+    levels_run: list[int] = field(default_factory=list)
+    full_models: int = 0
+    progress: Callable[[str, int, int | None], None] | None = None
+
+
+# ------------------------------------------------------------------ public
+
+
+def solve(
+    problem: Problem,
+    *,
+    top: int = 10,
+    time_limit_s: float | None = None,
+    max_structures: int | None = None,
+    progress: Callable[[str, int, int | None], None] | None = None,
+) -> SolveResult:
+    """Rank every structure allowed by the peak list's hard constraints.
+
+    Parameters
+    ----------
+    problem : Problem
+        Formula, 1H signals (13C optional), user require/forbid SMARTS.
+    top : int
+        Number of ranked candidates to return.
+    time_limit_s : float, optional
+        Wall-clock limit for the whole search; when hit, ``complete`` is
+        False and the best so far are returned.
+    max_structures : int, optional
+        Cap on generated structures (same effect as the time limit).
+    progress : callable, optional
+        ``progress(phase, done, total)`` is called as structures are built
+        and scored (see :mod:`elucidate.report.progress`); ``None``: silent.
+
+    Returns
+    -------
+    SolveResult
+
+    Raises
+    ------
+    InputError
+        No 1H signals, or a non-positive ``top`` / limit.
+
+    Examples
+    --------
+    >>> from elucidate.parse import load_problem
+    >>> p = load_problem(formula="C4H8O2",
+    ...     h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)")
+    >>> r = solve(p)
+    >>> r.candidates[0].smiles, r.complete
+    ('CCOC(C)=O', True)
+    """
+    _validate(problem, top, time_limit_s, max_structures)
+    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
+    return _result(run, ranked, top)
+
+
+def explain(
+    problem: Problem,
+    smiles: str,
+    *,
+    top: int = 10,
+    time_limit_s: float | None = None,
+    max_structures: int | None = None,
+    progress: Callable[[str, int, int | None], None] | None = None,
+) -> Explanation:
+    """Why one structure is (or is not) a good answer, and where it ranks.
+
+    Parameters
+    ----------
+    problem : Problem
+        The unknown.
+    smiles : str
+        The structure the chemist has in mind.
+    top, time_limit_s, max_structures, progress
+        As for :func:`solve` (the ranking needs the full search).
+
+    Returns
+    -------
+    Explanation
+        ``verdict`` is ``consistent``, ``poor fit`` or ``rejected``.
+
+    Raises
+    ------
+    InputError
+        Bad SMILES (names it), or the same errors as :func:`solve`.
+    """
+    _validate(problem, top, time_limit_s, max_structures)
+    canonical = _canonical(smiles)
+    return _explain(problem, canonical, top, time_limit_s, max_structures, progress)
+
+
+# ------------------------------------------------------------- validation
+
+
+def _validate(problem: Problem, top: int, time_limit_s: float | None, max_structures: int | None) -> None:
+    if not problem.h1:
+        raise InputError("no 1H signals: solve needs a 1H peak list (--h1 or [h1] in the case file)")
+    if top < 1:
+        raise InputError(f"--top {top}: must be at least 1")
+    if time_limit_s is not None and time_limit_s <= 0:
+        raise InputError(f"--time-limit {time_limit_s:g}: must be positive")
+    if max_structures is not None and max_structures < 1:
+        raise InputError(f"--max-structures {max_structures}: must be at least 1")
+
+
+def _canonical(smiles: str) -> str:
+    from rdkit import Chem, RDLogger
+
+    RDLogger.DisableLog("rdApp.*")
+    try:
+        mol = Chem.MolFromSmiles(smiles)
+    finally:
+        RDLogger.EnableLog("rdApp.*")
+    if mol is None or not smiles.strip():
+        raise InputError(f"SMILES {smiles!r} does not parse")
+    return Chem.MolToSmiles(mol)
+
+
+# ------------------------------------------------------------------ search
+
+
+def _solve(
+    problem: Problem, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+) -> tuple[_Run, list[_Entry]]:
+    start = time.monotonic()
+    run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures)
+    run.progress = progress
+    run.warnings.extend(problem.warnings)
+    matches = match_fragments(problem)
+    hard = [m for m in matches if m.rule.strength == "hard"]
+    hyp_cache: dict[int, HypothesisSet] = {}
+    prev_specs: set = set()
+    for li, level in enumerate(LEVELS):
+        if li > 0:
+            if _has_consistent(run) or run.stopped_by:
+                break
+            run.relaxed.append(level.relaxation)
+        run.levels_run.append(li)
+        specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
+        run.hypotheses_complete = complete
+        for spec in specs:
+            key = _spec_key(spec)
+            if key in prev_specs:
+                continue
+            prev_specs.add(key)
+            _consume(run, spec, li, level)
+            if run.stopped_by:
+                break
+        _score_pool(run, matches, hard if not level.hard_fragments else [])
+    ranked = _ranked(run)
+    return run, ranked
+
+
+def _has_consistent(run: _Run) -> bool:
+    return any(e.fit is not None and e.fit.verdict == "consistent" for e in run.entries.values())
+
+
+def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run) -> tuple[list, bool]:
+    from elucidate.generate import AtomSpec, FragmentSpec, Spec
+
+    if level.margin is None:
+        return [Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem))], True
+    if level.margin not in cache:
+        cache[level.margin] = proton_groups(problem, margin=level.margin)
+        for w in cache[level.margin].warnings:
+            if w not in run.warnings:
+                run.warnings.append(w)
+    hset: HypothesisSet = cache[level.margin]
+    specs = []
+    seen = set()
+    for hyp in hset.hypotheses:
+        h = hyp if level.neighbour_rules else hyp.without_neighbour_rules()
+        groups = list(h.groups)
+        bare = dict(h.bare)
+        frags = []
+        ok = True
+        require = list(problem.require)
+        if level.hard_fragments:
+            for match in hard:
+                carved = _carve(groups, bare, match)
+                if carved is None:
+                    ok = False
+                    break
+                if _generator_takes_fragments():
+                    groups, bare, frag = carved
+                    frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
+                else:
+                    require.append(_fragment_smarts(match.rule.smiles))
+        if not ok:
+            continue
+        atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
+        atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
+        spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(require), tuple(problem.forbid),
+                    _options(problem))
+        key = _spec_key(spec)
+        if key in seen:
+            continue
+        seen.add(key)
+        specs.append(spec)
+    return specs, hset.complete
+
+
+def _options(problem: Problem) -> Any:
+    """Generator switches the formula calls for: nitro groups and N-oxides
+    when N and O are present, S(IV/VI) with S, P(V) with P."""
+    from elucidate.generate import Options
+
+    f = problem.formula
+    return Options(
+        hypervalent_s=f["S"] > 0 and f["O"] > 0,
+        pentavalent_p=f["P"] > 0,
+        charge_separated=f["N"] > 0 and f["O"] >= 2,
+    )
+
+
+@functools.cache
+def _generator_takes_fragments() -> bool:
+    """Whether the generator places fragments as super-atoms (else hard
+    fragments go in as required substructures, with the same result)."""
+    from elucidate.generate import AtomSpec, FragmentSpec, Spec, generate
+    from elucidate.model import Formula
+
+    spec = Spec(Formula((("C", 2), ("H", 6))), (AtomSpec("C", 3),), (FragmentSpec("*C"),))
+    try:
+        return list(generate(spec)) == ["CC"]
+    except InputError:
+        return False
+
+
+def _fragment_smarts(smiles: str) -> str:
+    from rdkit import Chem
+
+    return Chem.MolToSmarts(_fragment_query(smiles))
+
+
+def _label(g: Group, problem: Problem) -> str:
+    where = "/".join(f"{problem.h1[i].shift:.2f}" for i in g.signals) or "unobserved"
+    return f"{g.kind}@{where}"
+
+
+def _spec_key(spec: Any) -> tuple:
+    atoms = None if spec.atoms is None else tuple(
+        sorted((a.element, a.h_count, tuple(sorted(a.neighbour_h)) if a.neighbour_h is not None else ()) for a in spec.atoms)
+    )
+    frags = tuple(sorted((f.smiles, tuple(sorted((k, tuple(sorted(v))) for k, v in f.neighbour_h.items()))) for f in spec.fragments))
+    return atoms, frags
+
+
+def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
+    """Take a hard fragment's atoms out of a hypothesis (None if it cannot host it)."""
+    groups = list(groups)
+    bare = dict(bare)
+    nb: dict[int, frozenset[int]] = {}
+    allowed = set(match.signals)
+    for idx, (el, h) in enumerate(fragment_atoms(match.rule.smiles)):
+        if h == 0:
+            if bare.get(el, 0) <= 0:
+                return None
+            bare[el] -= 1
+            continue
+        pick = next(
+            (g for g in groups if g.element == el and g.h_count == h and g.signals
+             and set(g.signals) <= allowed and g.kind != "CH2 (split)"),
+            None,
+        )
+        if pick is None:
+            return None
+        groups.remove(pick)
+        if pick.neighbour_h is not None:
+            nb[idx] = pick.neighbour_h
+    return groups, {k: v for k, v in bare.items() if v}, (match.rule.smiles, nb, match.rule.name)
+
+
+def _remaining(run: _Run) -> tuple[float | None, int | None]:
+    t = None if run.deadline is None else run.deadline - time.monotonic()
+    n = None if run.max_structures is None else run.max_structures - run.generated
+    return t, n
+
+
+def _consume(run: _Run, spec: Any, level_index: int, level: Level) -> None:
+    from elucidate.generate import Limits, Stats, generate
+
+    t, n = _remaining(run)
+    if (t is not None and t <= 0) or (n is not None and n <= 0):
+        run.stopped_by = "time limit" if t is not None and t <= 0 else "structure limit"
+        return
+    if level.margin is None and run.max_structures is None:
+        n = FORMULA_ONLY_CAP
+    stats = Stats()
+    run.specs += 1
+    count_here = 0
+    try:
+        for smi in generate(spec, limits=Limits(max_structures=n, time_limit_s=t), stats=stats):
+            count_here += 1
+            run.generated += 1
+            if run.progress is not None:
+                run.progress("building structures", run.generated, None)
+            if smi in run.entries or smi in run.rejected:
+                continue
+            _add(run, smi, level_index)
+    except LimitReached:
+        run.stopped_by = _which_limit(run, level, count_here, n)
+    stopped = getattr(stats, "stopped_by", None)
+    if stopped and not run.stopped_by:
+        run.stopped_by = _which_limit(run, level, count_here, n)
+    run.visited += int(getattr(stats, "visited", 0) or 0)
+
+
+def _which_limit(run: _Run, level: Level, count: int, n: int | None) -> str:
+    if n is not None and count >= n:
+        if level.margin is None and run.max_structures is None:
+            return f"formula-only cap of {FORMULA_ONLY_CAP} structures"
+        return "structure limit"
+    return "time limit"
+
+
+def _add(run: _Run, smi: str, level_index: int) -> None:
+    from elucidate.predict import predict
+
+    prediction = predict(smi, solvent=run.problem.solvent, field_mhz=run.problem.field_mhz)
+    bound, reason = quick_bound(run.problem, prediction, run.weights)
+    if reason is not None:
+        run.rejected[smi] = (_category(reason), reason)
+        return
+    run.entries[smi] = _Entry(smi, prediction, bound, level_index)
+
+
+def _category(reason: str) -> str:
+    """Group rejection sentences for the summary (drop the numbers of the
+    particular structure, keep the signal it fails)."""
+    if reason.startswith("needs a "):
+        return reason.split(" (", 1)[0]
+    if reason.startswith("cannot give these signals"):
+        return "several signals' integrals cannot all be met"
+    if reason.startswith("has only"):
+        return "too few distinct H environments"
+    if "no observed signal holds more than" in reason:
+        return "a set of equivalent H larger than any signal"
+    if "non-exchangeable H but" in reason or "signals need at least" in reason:
+        return "H count does not match the integrals"
+    return reason
+
+
+# ---------------------------------------------------------------- scoring
+
+
+def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[FragmentMatch]) -> None:
+    soft = [m for m in matches if m.rule.strength == "soft"] + list(demoted_hard)
+    pending = sorted((e for e in run.entries.values() if e.fit is None), key=lambda e: (e.bound, e.smiles))
+    if not pending:
+        return
+    done = sorted((e.fit.cost + e.soft_cost for e in run.entries.values() if e.fit is not None and e.fit.feasible))
+    for k, entry in enumerate(pending):
+        kth = done[9] if len(done) >= 10 else math.inf
+        if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
+            break  # bound-only: cannot enter the top ten
+        if run.progress is not None:
+            run.progress("scoring", k + 1, len(pending))
+        fit = assign(run.problem, entry.prediction, weights=run.weights)
+        run.full_models += 1
+        if not fit.feasible:
+            run.rejected[entry.smiles] = (_category(fit.reasons[0]), fit.reasons[0])
+            del run.entries[entry.smiles]
+            continue
+        entry.fit = fit
+        entry.soft_cost, entry.soft_notes = _soft_terms(entry.smiles, soft)
+        done.append(fit.cost + entry.soft_cost)
+        done.sort()
+
+
+def _soft_terms(smiles: str, soft: list[FragmentMatch]) -> tuple[float, tuple[str, ...]]:
+    if not soft:
+        return 0.0, ()
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    cost = 0.0
+    notes = []
+    for m in soft:
+        if not mol.HasSubstructMatch(_fragment_query(m.rule.smiles)):
+            cost += m.rule.weight
+            notes.append(f"no {m.rule.name} group, which the data suggest ({m.rule.source})")
+    return cost, tuple(notes)
+
+
+_QUERIES: dict[str, Any] = {}
+
+
+def _fragment_query(smiles: str) -> Any:
+    """SMARTS query of a fragment with exact H counts; dummies match any atom."""
+    if smiles in _QUERIES:
+        return _QUERIES[smiles]
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    query = Chem.RWMol(Chem.MolFromSmarts(Chem.MolToSmarts(mol)))
+    for atom in mol.GetAtoms():
+        if atom.GetAtomicNum() == 0:
+            qa = Chem.AtomFromSmarts("*")
+        else:
+            arom = "a" if atom.GetIsAromatic() else "A"
+            qa = Chem.AtomFromSmarts(f"[#{atom.GetAtomicNum()};{arom};H{atom.GetTotalNumHs()}]")
+        query.ReplaceAtom(atom.GetIdx(), qa)
+    _QUERIES[smiles] = query.GetMol()
+    return _QUERIES[smiles]
+
+
+def _total(entry: _Entry) -> float:
+    return (entry.fit.cost if entry.fit is not None else entry.bound) + entry.soft_cost
+
+
+def _ranked(run: _Run) -> list[_Entry]:
+    full = [e for e in run.entries.values() if e.fit is not None]
+    bound_only = [e for e in run.entries.values() if e.fit is None]
+    full.sort(key=lambda e: (round(_total(e), 6), e.smiles))
+    bound_only.sort(key=lambda e: (round(e.bound, 6), e.smiles))
+    return full + bound_only
+
+
+def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
+    notes = list(entry.fit.notes if entry.fit else ("ranked by its cheap bound only",))
+    notes += entry.soft_notes
+    if entry.level > 0:
+        notes.append(f"found only after relaxing: {LEVELS[entry.level].relaxation}")
+    verdict = entry.fit.verdict if entry.fit else "poor fit"
+    return Candidate(
+        rank=rank,
+        smiles=entry.smiles,
+        score=round(_total(entry), 4),
+        verdict=verdict,
+        assignments=entry.fit.assignments if entry.fit else (),
+        notes=tuple(notes),
+        prediction=entry.prediction,
+    )
+
+
+def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
+    candidates = tuple(_candidate(e, i + 1, run) for i, e in enumerate(ranked[:top]))
+    counts: dict[str, int] = {}
+    for cat, _ in run.rejected.values():
+        counts[cat] = counts.get(cat, 0) + 1
+    rejected_counts = tuple(sorted(counts.items(), key=lambda kv: (-kv[1], kv[0])))
+    examples = tuple(
+        Rejection(smi, (sentence,)) for smi, (_, sentence) in sorted(run.rejected.items())[:REJECTION_EXAMPLES]
+    )
+    complete = run.stopped_by is None and run.hypotheses_complete
+    warnings = list(run.warnings)
+    if not complete:
+        warnings.append(
+            "INCOMPLETE SEARCH: "
+            + (f"stopped by the {run.stopped_by}" if run.stopped_by else "H-count hypotheses were capped")
+            + "; the true structure may be missing from the list"
+        )
+    n_full = sum(1 for e in run.entries.values() if e.fit is not None)
+    result_counts = (
+        ("levels", len(run.levels_run)),
+        ("generator_runs", run.specs),
+        ("generated", run.generated),
+        ("unique", len(run.entries) + len(run.rejected)),
+        ("partial_structures_visited", run.visited),
+        ("ranked", len(ranked)),
+        ("full_models", run.full_models),
+        ("fully_scored", n_full),
+        ("bound_only", len(ranked) - n_full),
+        ("rejected", len(run.rejected)),
+    )
+    return SolveResult(
+        problem=run.problem,
+        complete=complete,
+        candidates=candidates,
+        rejected=examples,
+        rejected_counts=rejected_counts,
+        relaxed=tuple(run.relaxed),
+        counts=result_counts,
+        warnings=tuple(warnings),
+        stopped_by=run.stopped_by,
+    )
+
+
+# ----------------------------------------------------------------- explain
+
+
+def _structure_atoms(smiles: str) -> list[tuple[str, int, int]]:
+    """(element, H, H on bonded carbons) for each heavy atom."""
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    out = []
+    for a in mol.GetAtoms():
+        nb = sum(n.GetTotalNumHs() for n in a.GetNeighbors() if n.GetSymbol() == "C")
+        out.append((a.GetSymbol(), a.GetTotalNumHs(), nb))
+    return out
+
+
+def _hypothesis_fits(hyp: Hypothesis, atoms: list[tuple[str, int, int]]) -> bool:
+    """Bipartite matching of hypothesis groups to structure atoms."""
+    groups = list(hyp.groups)
+    bare = dict(hyp.bare)
+    need_bare: dict[str, int] = {}
+    with_h = []
+    for i, (el, h, nb) in enumerate(atoms):
+        if h == 0:
+            need_bare[el] = need_bare.get(el, 0) + 1
+        else:
+            with_h.append(i)
+    if need_bare != {k: v for k, v in bare.items() if v}:
+        return False
+    if len(with_h) != len(groups):
+        return False
+    match: dict[int, int] = {}
+
+    def ok(g: Group, i: int) -> bool:
+        el, h, nb = atoms[i]
+        return g.element == el and g.h_count == h and (g.neighbour_h is None or nb in g.neighbour_h)
+
+    def augment(gi: int, seen: set[int]) -> bool:
+        for i in with_h:
+            if i in seen or not ok(groups[gi], i):
+                continue
+            seen.add(i)
+            if i not in match or augment(match[i], seen):
+                match[i] = gi
+                return True
+        return False
+
+    return all(augment(gi, set()) for gi in range(len(groups)))
+
+
+def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard: list[FragmentMatch]) -> list[str]:
+    """Why a structure violates the strict hard constraints (empty if it does not)."""
+    atoms = _structure_atoms(smiles)
+    reasons: list[str] = []
+    if not hset.hypotheses:
+        return reasons
+    if any(_hypothesis_fits(h, atoms) for h in hset.hypotheses):
+        pass
+    else:
+        best = hset.hypotheses[0]
+        has_h = _hypothesis_fits(best.without_neighbour_rules(), atoms)
+        if has_h:
+            # the H counts fit: name the multiplicity rules that fail
+            for i, s in enumerate(problem.h1):
+                gs = [g for g in best.groups if g.signals == (i,) and g.neighbour_h is not None]
+                for g in gs:
+                    hits = [nb for el, h, nb in atoms if el == g.element and h == g.h_count]
+                    if not any(nb in g.neighbour_h for nb in hits):
+                        want = "/".join(str(v) for v in sorted(g.neighbour_h))
+                        have = ", ".join(str(v) for v in sorted(set(hits))) or "none"
+                        reasons.append(
+                            f"the {rs.describe_signal(s)} needs a {g.kind} with {want} H on neighbouring "
+                            f"carbons (n+1 rule); this structure's {g.kind} groups have {have}"
+                        )
+                        break
+        if not reasons:
+            counts: dict[str, int] = {}
+            for el, h, _ in atoms:
+                key = f"{el}H{h}" if h else f"{el} without H"
+                counts[key] = counts.get(key, 0) + 1
+            have = ", ".join(f"{n} {k}" for k, n in sorted(counts.items()))
+            reasons.append(
+                "its H distribution matches no reading of the peak list "
+                f"(structure: {have}; most likely reading: {best.describe()})"
+            )
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    for m in hard:
+        if not mol.HasSubstructMatch(_fragment_query(m.rule.smiles)):
+            reasons.append(f"the data imply a {m.rule.name} group (hard rule: {m.rule.source}); this structure has none")
+    for sm in problem.require:
+        q = Chem.MolFromSmarts(sm)
+        if q is not None and not mol.HasSubstructMatch(q):
+            reasons.append(f"lacks the required substructure {sm}")
+    for sm in problem.forbid:
+        q = Chem.MolFromSmarts(sm)
+        if q is not None and mol.HasSubstructMatch(q):
+            reasons.append(f"contains the forbidden substructure {sm}")
+    return reasons
+
+
+def _formula_of(smiles: str) -> str:
+    from rdkit import Chem
+    from rdkit.Chem.rdMolDescriptors import CalcMolFormula
+
+    return CalcMolFormula(Chem.MolFromSmiles(smiles))
+
+
+def _explain(
+    problem: Problem, smiles: str, top: int, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+) -> Explanation:
+    from elucidate.predict import predict
+
+    formula = _formula_of(smiles)
+    if formula != problem.formula.hill:
+        reason = f"its formula is {formula}, not {problem.formula.hill}"
+        return Explanation(problem, smiles, "rejected", None, 0, None, Rejection(smiles, (reason,)), (reason,), True, ())
+    hset = proton_groups(problem, margin=MARGIN_STRICT)
+    hard = [m for m in match_fragments(problem) if m.rule.strength == "hard"]
+    constraint_reasons = _constraint_reasons(problem, smiles, hset, hard)
+    prediction = predict(smiles, solvent=problem.solvent, field_mhz=problem.field_mhz)
+    bound, quick_reason = quick_bound(problem, prediction)
+    fit = None
+    reasons: list[str] = list(constraint_reasons)
+    if quick_reason is not None:
+        reasons.insert(0, quick_reason)
+    else:
+        fit = assign(problem, prediction)
+        if not fit.feasible:
+            reasons = list(fit.reasons) + reasons
+    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
+    rank = next((i + 1 for i, e in enumerate(ranked) if e.smiles == smiles), None)
+    total = len(ranked)
+    if fit is None or not fit.feasible:
+        verdict = "rejected"
+        candidate = None
+        rejection = Rejection(smiles, tuple(reasons))
+    else:
+        matches = match_fragments(problem)
+        soft = [m for m in matches if m.rule.strength == "soft"]
+        soft_cost, soft_notes = _soft_terms(smiles, soft)
+        entry = _Entry(smiles, prediction, bound, 0, fit, soft_cost, soft_notes)
+        if rank is None:
+            # not generated under the hard constraints: where would it stand?
+            would = 1 + sum(1 for e in ranked if _total(e) < _total(entry))
+            reasons.append(f"by its fit alone it would rank {would} of {total + 1}")
+        candidate = _candidate(entry, rank or 0, run)
+        verdict = "rejected" if constraint_reasons and rank is None else fit.verdict
+        if verdict != "consistent":
+            reasons += list(fit.notes)
+        rejection = Rejection(smiles, tuple(reasons)) if verdict == "rejected" else None
+    complete = run.stopped_by is None and run.hypotheses_complete
+    warnings = tuple(run.warnings) + (
+        () if complete else (f"INCOMPLETE SEARCH: stopped by the {run.stopped_by or 'hypothesis cap'}; the rank is among the structures seen",)
+    )
+    return Explanation(problem, smiles, verdict, rank, total, candidate, rejection, tuple(reasons), complete, warnings)

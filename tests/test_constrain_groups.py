@@ -1,0 +1,140 @@
+"""constrain.groups: H-distribution hypotheses from a peak list."""
+
+import pytest
+
+from elucidate.constrain.groups import attachment_class, neighbour_counts, proton_groups
+from elucidate.errors import InputError
+from elucidate.model import Formula, H1Signal, Problem
+
+
+def sig(shift, mult, h, j=(), broad=False):
+    return H1Signal(shift, shift, shift, mult, tuple(j), h, h, broad=broad)
+
+
+def formula(**counts):
+    order = ("C", "H", "Br", "Cl", "F", "I", "N", "O", "P", "S", "Si")
+    return Formula(tuple((el, counts[el]) for el in order if counts.get(el)))
+
+
+# Ethyl acetate in CDCl3: 4.12 (q, 7.1, 2H), 2.05 (s, 3H), 1.26 (t, 7.1, 3H)
+# (Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512, trace-impurity table).
+ETHYL_ACETATE = Problem(
+    formula(C=4, H=8, O=2),
+    (sig(4.12, "q", 2, [7.1]), sig(2.05, "s", 3), sig(1.26, "t", 3, [7.1])),
+)
+
+# Isobutyl propanoate, the worked example of DESIGN.md (values from memory).
+ISOBUTYL_PROPANOATE = Problem(
+    formula(C=7, H=14, O=2),
+    (sig(3.87, "d", 2, [6.7]), sig(2.33, "q", 2, [7.6]), sig(1.92, "m", 1),
+     sig(1.14, "t", 3, [7.6]), sig(0.93, "d", 6, [6.7])),
+)
+
+
+def _atoms(h):
+    return sorted((g.kind, g.h_count, tuple(sorted(g.neighbour_h)) if g.neighbour_h else None) for g in h.groups)
+
+
+def test_ethyl_acetate_best_reading():
+    # n+1 rule (common practice): q -> 3 neighbouring H, s -> 0, t -> 2.
+    hs = proton_groups(ETHYL_ACETATE)
+    best = hs.hypotheses[0]
+    assert _atoms(best) == [("CH2", 2, (3,)), ("CH3", 3, (0,)), ("CH3", 3, (2,))]
+    assert dict(best.bare) == {"C": 1, "O": 2}
+    assert best.cost == 0 and hs.complete
+
+
+def test_isobutyl_propanoate_worked_example():
+    # DESIGN.md: CH2 with one vicinal H, CH2 with three, CH (no rule), CH3 with
+    # two, two equivalent CH3 with one; the 7th carbon and both O carry no H.
+    best = proton_groups(ISOBUTYL_PROPANOATE).hypotheses[0]
+    assert _atoms(best) == [
+        ("CH", 1, None), ("CH2", 2, (1,)), ("CH2", 2, (3,)),
+        ("CH3", 3, (1,)), ("CH3", 3, (1,)), ("CH3", 3, (2,)),
+    ]
+    assert dict(best.bare) == {"C": 1, "O": 2}
+
+
+def test_hypotheses_sorted_and_distinct():
+    hs = proton_groups(ISOBUTYL_PROPANOATE, margin=6)
+    costs = [h.cost for h in hs.hypotheses]
+    assert costs == sorted(costs)
+    keys = [h.key() for h in hs.hypotheses]
+    assert len(keys) == len(set(keys)) > 1
+
+
+def test_missing_oh_goes_unobserved():
+    # Ethanol in CDCl3 without its OH line: 3.72 (q, 2H), 1.25 (t, 3H)
+    # (Gottlieb et al. 1997). The missing H must sit on O, unobserved.
+    p = Problem(formula(C=2, H=6, O=1), (sig(3.72, "q", 2, [7.0]), sig(1.25, "t", 3, [7.0])))
+    hs = proton_groups(p)
+    assert hs.unobserved_h == 1
+    best = hs.hypotheses[0]
+    assert ("OH", 1, None) in _atoms(best)
+    assert [g.signals for g in best.groups if g.kind == "OH"] == [()]
+
+
+def test_integrals_above_formula_give_no_hypothesis():
+    p = Problem(formula(C=2, H=6, O=1), (sig(3.72, "q", 4), sig(1.25, "t", 3)))
+    hs = proton_groups(p)
+    assert hs.hypotheses == ()
+    assert "7 H" in hs.warnings[-1]
+
+
+def test_vinyl_ch2_split_over_two_signals():
+    # Vinyl acetate (from memory): 7.27 (dd, 14.0, 6.3), 4.87 (dd, 14.0, 1.6),
+    # 4.56 (dd, 6.3, 1.6), 2.13 (s, 3H): the =CH2 H appear as two signals.
+    p = Problem(
+        formula(C=4, H=6, O=2),
+        (sig(7.27, "dd", 1, [14.0, 6.3]), sig(4.87, "dd", 1, [14.0, 1.6]),
+         sig(4.56, "dd", 1, [6.3, 1.6]), sig(2.13, "s", 3)),
+    )
+    hs = proton_groups(p, margin=4)
+    splits = [
+        g.signals for h in hs.hypotheses for g in h.groups if g.kind == "CH2 (split)"
+    ]
+    assert (1, 2) in splits
+
+
+def test_shift_limits_group_kinds():
+    # A CH3 above 4.7 ppm does not occur (common practice): a 3H signal at
+    # 9.8 ppm must be read as CH/XH groups, never as one CH3.
+    p = Problem(formula(C=3, H=6, O=1), (sig(9.8, "s", 3), sig(1.1, "t", 3, [7.0])))
+    for h in proton_groups(p, margin=10).hypotheses:
+        assert not any(g.kind == "CH3" and g.signals == (0,) for g in h.groups)
+
+
+@pytest.mark.parametrize(
+    "signal, expected",
+    [
+        (sig(4.12, "q", 2, [7.1]), {3}),           # n+1: quartet, 3 neighbours
+        (sig(1.26, "t", 3, [7.1]), {2}),
+        (sig(2.55, "sept", 1, [6.9]), {6}),        # isopropyl CH
+        (sig(3.40, "dd", 1, [8.0, 2.0]), {1, 2}),  # J < 3.2 Hz may be 4J: optional
+        (sig(1.50, "m", 2), None),                 # multiplet: no rule
+        (sig(2.00, "s", 1, broad=True), None),     # broad: no rule
+        (sig(9.70, "s", 1), {0, 1, 2}),            # aldehyde 3J often unresolved
+    ],
+)
+def test_neighbour_counts(signal, expected):
+    f = formula(C=6, H=12, O=1)
+    got = neighbour_counts(signal, f)
+    assert (None if got is None else set(got)) == expected
+
+
+def test_neighbour_counts_with_fluorine_only_bound_above():
+    # H-F coupling splits too (common practice), so a triplet in a fluorinated
+    # compound means at most 2 vicinal H.
+    f = formula(C=2, H=5, F=1)
+    assert set(neighbour_counts(sig(1.35, "t", 3, [7.0]), f)) == {0, 1, 2}
+
+
+def test_attachment_classes():
+    assert attachment_class(sig(11.5, "s", 1, broad=True)).startswith("acid")
+    assert attachment_class(sig(7.3, "m", 5)).startswith("aromatic")
+    assert attachment_class(sig(0.9, "t", 3)).startswith("alkyl")
+
+
+def test_bad_arguments():
+    with pytest.raises(InputError, match="margin"):
+        proton_groups(ETHYL_ACETATE, margin=-1)

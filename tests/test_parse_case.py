@@ -74,6 +74,9 @@ peaks = [{shift = 171.1, type = "C"}, {shift = 60.4, dept = "CH2"}, {shift = 21.
     assert [(s.shift, s.attached_h) for s in problem.c13] == [(171.1, 0), (60.4, 2), (21.0, None), (14.2, None)]
     h1_inline = 'formula = "C4H8O2"\nh1 = [{shift = 2.05, mult = "s", h = 3}, {shift = 4.12, mult = "q", J = [7.1], h = 2}, {shift = 1.26, mult = "t", J = 7.1, h = 3}]\n'
     assert [s.shift for s in problem_from_toml(h1_inline).h1] == [4.12, 2.05, 1.26]
+    ranged = 'formula = "C9H10O2"\nh1 = [{shift = [7.36, 7.28], mult = "m", nH = 5}, {shift = 5.11, nH = 2}]\n'
+    (ring, _) = problem_from_toml(ranged).h1
+    assert (ring.shift, ring.shift_low, ring.shift_high) == (7.32, 7.28, 7.36)
 
 
 @pytest.mark.parametrize(

@@ -365,6 +365,8 @@ def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[s
                 raise InputError(f"{at}: unknown peak key '{short(k)}'")
             if role in row:
                 raise InputError(f"{at}: '{short(k)}' repeats the {role} of this peak")
+            if role in ("shift", "range") and isinstance(v, list) and len(v) == 2:
+                v = f"{_cell(v[0], at)}–{_cell(v[1], at)}"  # shift = [7.36, 7.28]: a range
             cell = _cell(v, at).strip()
             if cell:
                 row[role] = cell

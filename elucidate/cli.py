@@ -617,10 +617,30 @@ def explain_command(
 
 
 
-def main() -> None:
-    """Console-script entry point."""
+def _click_exceptions() -> Any:
+    """The click exception module typer uses (vendored in recent typer)."""
     try:
-        app()
+        from typer._click import exceptions
+    except ImportError:  # older typer depends on click itself
+        from click import exceptions
+    return exceptions
+
+
+def main() -> None:
+    """Console-script entry point: every expected failure is one stderr line."""
+    exceptions = _click_exceptions()
+    try:
+        code = app(standalone_mode=False)
+    except exceptions.NoArgsIsHelpError as err:  # bare `elucidate`: show the help
+        typer.echo(err.format_message())
+        sys.exit(0)
+    except exceptions.ClickException as err:  # bad option value, missing file, no such command …
+        typer.echo(f"error: {' '.join(err.format_message().split())}", err=True)
+        sys.exit(EXIT_INPUT)
+    except exceptions.Abort:
+        typer.echo("error: interrupted", err=True)
+        sys.exit(130)
     except InputError as err:  # a command without @user_errors: still one line
         typer.echo(f"error: {err}", err=True)
         sys.exit(EXIT_INPUT)
+    sys.exit(code if isinstance(code, int) else 0)

@@ -347,6 +347,33 @@ class _Progress:
 # ---------------------------------------------------------- predict (predict)
 
 
+@app.command("predict")
+@user_errors
+def predict_command(
+    smiles: Annotated[str, typer.Argument(help="Structure as SMILES, e.g. 'CCOC(C)=O'.", show_default=False)],
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    as_json: JsonOpt = False,
+) -> None:
+    """Predict the 1H spectrum of a structure, one row per H environment, each
+    shift with its derivation (published additive increment methods), plus
+    13C shifts."""
+    from elucidate.predict import predict
+    from elucidate.predict.format import render_prediction
+
+    result = predict(smiles, solvent=solvent, field_mhz=field)
+    for w in result.warnings:
+        warn(w)
+    if as_json:
+        doc = result.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
+        return
+    typer.echo(render_prediction(result, field_mhz=field))
+    typer.echo("")
+    typer.echo(CAUTION)
+
+
 # ------------------------------------------------------ solve, explain (score)
 
 

@@ -247,6 +247,7 @@ class Environment(_JsonMixin):
     diastereotopic: bool
     label: str
     derivation: tuple[str, ...]
+    kind: str = ""  # shift class: sp3, alkene, aromatic, heteroaromatic, aldehyde, alkyne, XH, other
 
     def to_json(self) -> dict[str, Any]:
         out = _json(asdict(self))

@@ -653,7 +653,7 @@ def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard
         if not reasons:
             counts: dict[str, int] = {}
             for el, h, _ in atoms:
-                key = f"{el}H{h}" if h else f"{el} without H"
+                key = (f"{el}H{h}" if h > 1 else f"{el}H") if h else f"{el} without H"
                 counts[key] = counts.get(key, 0) + 1
             have = ", ".join(f"{n} {k}" for k, n in sorted(counts.items()))
             reasons.append(

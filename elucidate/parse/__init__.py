@@ -6,7 +6,13 @@ and TOML case files (:func:`load_problem`).  Every bad input raises
 :class:`elucidate.errors.InputError` naming the token and where it is.
 """
 
-from elucidate.parse.case import load_problem, problem_from_toml, read_peak_file, validate_smarts
+from elucidate.parse.case import (
+    load_problem,
+    problem_from_toml,
+    read_peak_file,
+    read_peak_text,
+    validate_smarts,
+)
 from elucidate.parse.formula import MAX_HEAVY_ATOMS, parse_formula
 from elucidate.parse.multiplicity import normalise_multiplicity
 from elucidate.parse.peaks import parse_c13, parse_h1
@@ -20,5 +26,6 @@ __all__ = [
     "parse_h1",
     "problem_from_toml",
     "read_peak_file",
+    "read_peak_text",
     "validate_smarts",
 ]

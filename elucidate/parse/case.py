@@ -30,9 +30,10 @@ from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, Problem
 from elucidate.parse.formula import parse_formula
 from elucidate.parse.jcamp import jcamp_c13_rows, jcamp_h1_rows, looks_like_jcamp, read_jcamp
-from elucidate.parse.peaks import PeakList, _short, finish_c13, finish_h1, read_c13_text, read_h1_text
+from elucidate.parse.lexing import short
+from elucidate.parse.peaks import PeakList, finish_c13, finish_h1, read_c13_text, read_h1_text
 from elucidate.parse.solvents import c13_solvent_warnings, h1_solvent_warnings, normalise_solvent
-from elucidate.parse.tables import _role, c13_rows, h1_rows, looks_like_table, row_to_c13, row_to_h1
+from elucidate.parse.tables import c13_rows, column_role, h1_rows, looks_like_table, row_to_c13, row_to_h1
 
 __all__ = [
     "CASE_KEYS",
@@ -40,6 +41,7 @@ __all__ = [
     "load_problem",
     "problem_from_toml",
     "read_peak_file",
+    "read_peak_text",
     "validate_smarts",
 ]
 
@@ -75,6 +77,7 @@ class _Settings:
     c13: _Source | None = None
     require: tuple[str, ...] = ()
     forbid: tuple[str, ...] = ()
+    formula_origin: str = "--formula"
 
 
 def load_problem(
@@ -113,8 +116,10 @@ def load_problem(
     for label, value in (("--formula", formula), ("--h1", h1), ("--c13", c13), ("--solvent", solvent)):
         if value is not None and not isinstance(value, str):
             raise InputError(f"{label} must be text, not {type(value).__name__}")
-    if field_mhz is not None and not isinstance(field_mhz, (int, float)):
+    if field_mhz is not None and (isinstance(field_mhz, bool) or not isinstance(field_mhz, (int, float))):
         raise InputError(f"--field must be a number of MHz, not {type(field_mhz).__name__}")
+    require = (require,) if isinstance(require, str) else tuple(require)
+    forbid = (forbid,) if isinstance(forbid, str) else tuple(forbid)
     settings = _Settings()
     if case is not None:
         path = Path(case)
@@ -124,6 +129,7 @@ def load_problem(
     here = Path.cwd()
     if formula is not None:
         settings.formula = formula
+        settings.formula_origin = "--formula"
     if h1 is not None:
         settings.h1 = _text_or_file(h1, here, "--h1")
     if c13 is not None:
@@ -152,11 +158,27 @@ def read_peak_file(path: Path, nucleus: str, formula: Formula | None = None) -> 
     else from the content (``##`` records; a header row of known column names;
     otherwise the text is read like ``--h1``/``--c13`` text).
     """
-    text = _read_text(path, f"{nucleus} file")
-    name = path.name
-    suffix = path.suffix.lower()
+    return read_peak_text(_read_text(path, f"{nucleus} file"), path.name, nucleus, formula)
+
+
+def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None = None) -> PeakList:
+    """Read the contents of a peak file called ``name`` (see :func:`read_peak_file`).
+
+    Parameters
+    ----------
+    text : str
+        File contents.
+    name : str
+        File name: its suffix picks the reader, and messages name it.
+    nucleus : {"1H", "13C"}
+    formula : Formula, optional
+        For scaling relative 1H integrals.
+    """
+    if nucleus not in ("1H", "13C"):
+        raise InputError(f"nucleus must be 1H or 13C, not '{short(str(nucleus))}'")
+    suffix = Path(name).suffix.lower()
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
-        doc = read_jcamp(text, name)
+        doc = read_jcamp(text, name, nucleus)
         if nucleus == "1H":
             signals, warnings = finish_h1(jcamp_h1_rows(doc), formula)
             field_mhz = doc.observe_mhz if doc.nucleus in (None, "1H") else None
@@ -195,7 +217,7 @@ def validate_smarts(patterns: Sequence[str], option: str) -> tuple[str, ...]:
         if not p:
             raise InputError(f"{option} #{i} is empty (expected a SMARTS pattern, e.g. C(=O)O)")
         if _smarts_mol(p) is None:
-            raise InputError(f"{option} #{i}: '{_short(p, 60)}' is not valid SMARTS")
+            raise InputError(f"{option} #{i}: '{short(p, 60)}' is not valid SMARTS")
         out.append(p)
     return tuple(out)
 
@@ -256,9 +278,9 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
     unknown = [k for k in doc if k not in CASE_KEYS]
     if unknown:
         raise InputError(
-            f"{origin}: unknown key '{_short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
+            f"{origin}: unknown key '{short(unknown[0])}' (known: {', '.join(CASE_KEYS)})"
         )
-    s = _Settings()
+    s = _Settings(formula_origin=origin)
     for key in ("name", "description", "formula", "solvent"):
         if key in doc:
             setattr(s, key, _string(doc[key], key, origin))
@@ -300,7 +322,7 @@ def _spectrum(value: Any, key: str, base: Path, origin: str) -> _Source:
         raise InputError(f"{where}: give text, \"@file\", or a table with text, file or peaks")
     unknown = [k for k in value if k not in _SPECTRUM_KEYS]
     if unknown:
-        raise InputError(f"{where}: unknown key '{_short(unknown[0])}' (known: {', '.join(_SPECTRUM_KEYS)})")
+        raise InputError(f"{where}: unknown key '{short(unknown[0])}' (known: {', '.join(_SPECTRUM_KEYS)})")
     given = [k for k in _SPECTRUM_KEYS if k in value]
     if len(given) != 1:
         raise InputError(f"{where}: give exactly one of text, file or peaks")
@@ -327,7 +349,10 @@ def _cell(value: Any, where: str) -> str:
 
 def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[str, str]]]:
     if not isinstance(value, list) or not value:
-        raise InputError(f"{where}: 'peaks' must be a non-empty array of tables, e.g. [{{shift = 2.09, mult = \"s\", h = 3}}]")
+        raise InputError(
+            f"{where}: 'peaks' must be a non-empty array of tables, "
+            'e.g. [{shift = 2.09, mult = "s", h = 3}]'
+        )
     rows = []
     for i, peak in enumerate(value, start=1):
         at = f"{where} peak {i}"
@@ -335,11 +360,13 @@ def _inline_rows(value: Any, nucleus: str, where: str) -> list[tuple[str, dict[s
             raise InputError(f"{at}: each peak must be a table such as {{shift = 2.09, mult = \"s\", h = 3}}")
         row: dict[str, str] = {}
         for k, v in peak.items():
-            role = _role(k, nucleus)
+            role = column_role(k, nucleus)
             if role is None:
-                raise InputError(f"{at}: unknown peak key '{_short(k)}'")
+                raise InputError(f"{at}: unknown peak key '{short(k)}'")
             if role in row:
-                raise InputError(f"{at}: '{_short(k)}' repeats the {role} of this peak")
+                raise InputError(f"{at}: '{short(k)}' repeats the {role} of this peak")
+            if role in ("shift", "range") and isinstance(v, list) and len(v) == 2:
+                v = f"{_cell(v[0], at)}–{_cell(v[1], at)}"  # shift = [7.36, 7.28]: a range
             cell = _cell(v, at).strip()
             if cell:
                 row[role] = cell
@@ -373,7 +400,12 @@ def _read_spectrum(source: _Source, nucleus: str, formula: Formula) -> PeakList:
 def _problem(s: _Settings) -> Problem:
     if s.formula is None:
         raise InputError("no formula given (use --formula or 'formula =' in the case file)")
-    formula = parse_formula(s.formula)
+    try:
+        formula = parse_formula(s.formula)
+    except InputError as err:
+        if s.formula_origin.startswith("--"):
+            raise
+        raise InputError(f"{s.formula_origin}: {err}") from None
     if s.h1 is None:
         raise InputError("no 1H peak list given (use --h1 or 'h1 =' in the case file)")
     warnings: list[str] = []
@@ -385,7 +417,9 @@ def _problem(s: _Settings) -> Problem:
         warnings.extend(c13.warnings)
 
     solvent = _choose(
-        "solvent", s.solvent, [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
+        "solvent",
+        s.solvent,
+        [("the 1H header", h1.solvent), ("the 13C header", c13.solvent if c13 else None)],
         warnings, same=lambda a, b: normalise_solvent(a)[0] == normalise_solvent(b)[0],
     )
     if solvent is not None:
@@ -394,7 +428,9 @@ def _problem(s: _Settings) -> Problem:
             raise InputError("solvent is empty")
         if not known:
             warnings.append(f"solvent '{solvent}' is not in the solvent table: no residual-signal check")
-    field_mhz = _choose("field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1)
+    field_mhz = _choose(
+        "field", s.field_mhz, [("the 1H header", h1.field_mhz)], warnings, same=lambda a, b: abs(a - b) < 1
+    )
     if field_mhz is not None and not (math.isfinite(field_mhz) and 10 <= field_mhz <= 2000):
         raise InputError(f"field '{field_mhz:g}' MHz is not a spectrometer frequency (10–2000 MHz)")
 
@@ -411,7 +447,7 @@ def _problem(s: _Settings) -> Problem:
     forbid = validate_smarts(s.forbid, "--forbid")
     both = sorted(set(require) & set(forbid))
     if both:
-        raise InputError(f"SMARTS '{_short(both[0], 60)}' is both required and forbidden")
+        raise InputError(f"SMARTS '{short(both[0], 60)}' is both required and forbidden")
     h1_signals: tuple[H1Signal, ...] = h1.signals
     return Problem(
         formula=formula,
@@ -433,7 +469,9 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     if given is not None:
         for where, v in others:
             if not same(given, v):
-                warnings.append(f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}")
+                warnings.append(
+                    f"{what} {_show(given)} given, but {where} says {_show(v)}: using {_show(given)}"
+                )
         return given
     if not others:
         return None
@@ -441,7 +479,8 @@ def _choose(what: str, given: Any, found: list[tuple[str, Any]], warnings: list[
     for where, v in others[1:]:
         if not same(chosen, v):
             warnings.append(
-                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: using {_show(chosen)}"
+                f"{what}: {others[0][0]} says {_show(chosen)} but {where} says {_show(v)}: "
+                f"using {_show(chosen)}"
             )
     return chosen
 

@@ -21,7 +21,7 @@ MAX_HEAVY_ATOMS = 30
 
 # Longest element symbol first so that "Cl" is not read as "C" + "l".
 _SYMBOL = re.compile(r"[A-Z][a-z]?")
-_COUNT = re.compile(r"\d+")
+_COUNT = re.compile(r"[0-9]+")
 _MAX_COUNT_DIGITS = 4
 _ORDER = {el: i for i, el in enumerate(ELEMENTS)}
 _HALOGENS = ("F", "Cl", "Br", "I")
@@ -94,13 +94,13 @@ def _parse_formula(text: str) -> Formula:
                 "supported; write the element counts, e.g. C4H10O"
             )
         if ch == "." or ch == ",":
-            tail = re.match(r"[.,]\d*", text[i:])
+            tail = re.match(r"[.,][0-9]*", text[i:])
             token = tail.group(0) if tail else ch
             raise InputError(
                 f"formula '{shown}': '{token}' at position {i + 1} is not an element count "
                 "(counts are whole numbers)"
             )
-        if ch.isdigit():
+        if ch in "0123456789":
             token = _COUNT.match(text, i).group(0)  # type: ignore[union-attr]
             raise InputError(
                 f"formula '{shown}': count '{token}' at position {i + 1} does not follow an "

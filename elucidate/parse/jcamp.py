@@ -21,14 +21,28 @@ import re
 from dataclasses import dataclass
 
 from elucidate.errors import InputError
+from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
-from elucidate.parse.peaks import RawC13, RawH1, _OFF_RESONANCE, _short, to_float
+from elucidate.parse.peaks import RawC13, RawH1
 
-__all__ = ["MAX_PEAKS", "JcampPeak", "JcampPeaks", "norm_label", "looks_like_jcamp", "read_jcamp", "jcamp_h1_rows", "jcamp_c13_rows"]
+__all__ = [
+    "MAX_PEAKS",
+    "LINE_SPACING_HZ",
+    "JcampPeak",
+    "JcampPeaks",
+    "norm_label",
+    "looks_like_jcamp",
+    "read_jcamp",
+    "jcamp_h1_rows",
+    "jcamp_c13_rows",
+]
 
 #: More rows than this is a line list of a whole spectrum, not a signal table.
 MAX_PEAKS = 200
+#: Peaks closer than this (Hz) look like lines of one multiplet (a typical 3J is 6–8 Hz).
+LINE_SPACING_HZ = 10.0
 
+_NUCLEI = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}
 _LDR = re.compile(r"##([^=]*)=(.*)", re.DOTALL)
 _VARLIST = re.compile(r"\s*\(\s*([A-Z]+)\s*(?:\.\.\s*([A-Z]+)\s*)?\)", re.IGNORECASE)
 
@@ -76,7 +90,7 @@ def looks_like_jcamp(text: str) -> bool:
     return False
 
 
-def read_jcamp(text: str, name: str) -> JcampPeaks:
+def read_jcamp(text: str, name: str, nucleus: str | None = None) -> JcampPeaks:
     """Read the peak table of a JCAMP-DX text.
 
     Parameters
@@ -85,6 +99,9 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
         File contents.
     name : str
         File name for messages.
+    nucleus : {"1H", "13C"}, optional
+        In a file with several blocks, prefer the first peak table whose
+        ``##.OBSERVE NUCLEUS=`` is this one (or is not stated).
 
     Raises
     ------
@@ -94,10 +111,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
     """
     records = _records(text, name)
     blocks = _blocks(records)
-    for block in blocks:
-        labels = {label for label, _, _ in block}
-        if "PEAKTABLE" in labels or "PEAKASSIGNMENTS" in labels:
-            return _peaks(block, name)
+    tables = [b for b in blocks if any(label in ("PEAKTABLE", "PEAKASSIGNMENTS") for label, _, _ in b)]
+    if tables:
+        for block in tables:
+            stated = next((v for label, v, _ in block if label == ".OBSERVENUCLEUS"), None)
+            if nucleus is None or stated is None or _nucleus(stated) == nucleus:
+                return _peaks(block, name)
+        return _peaks(tables[0], name)  # the nucleus check then names the mismatch
     if any(label in ("XYDATA", "DATATABLE", "XYPOINTS") for block in blocks for label, _, _ in block):
         raise InputError(
             f"{name}: holds a full spectrum (XYDATA), not a peak table; export the peak list "
@@ -107,8 +127,13 @@ def read_jcamp(text: str, name: str) -> JcampPeaks:
 
 
 def _records(text: str, name: str) -> list[tuple[str, str, int]]:
-    """(normalised label, value, line number) for each ##LABEL= record."""
-    out: list[tuple[str, str, int]] = []
+    """(normalised label, value, line number) for each ##LABEL= record.
+
+    Continuation lines are joined with line-number markers so that messages
+    about a peak can name its own line.
+    """
+    heads: list[tuple[str, int]] = []
+    values: list[list[str]] = []
     for n, line in enumerate(text.lstrip("\ufeff").splitlines(), start=1):
         if "$$" in line:
             line = line[: line.index("$$")]
@@ -116,16 +141,16 @@ def _records(text: str, name: str) -> list[tuple[str, str, int]]:
         if s.startswith("##"):
             m = _LDR.match(s)
             if m is None:
-                raise InputError(f"{name} line {n}: '{_short(s)}' has no '=' (expected ##LABEL=value)")
-            out.append((norm_label(m.group(1)), m.group(2).strip(), n))
-        elif s and out:
-            label, value, start = out[-1]
-            out[-1] = (label, value + "\n" + f"\x00{n}\x00" + s, start)
+                raise InputError(f"{name} line {n}: '{short(s)}' has no '=' (expected ##LABEL=value)")
+            heads.append((norm_label(m.group(1)), n))
+            values.append([m.group(2).strip()])
+        elif s and heads:
+            values[-1].append(f"\x00{n}\x00" + s)
         elif s:
-            raise InputError(f"{name} line {n}: '{_short(s)}' comes before any ##LABEL= record")
-    if not out:
+            raise InputError(f"{name} line {n}: '{short(s)}' comes before any ##LABEL= record")
+    if not heads:
         raise InputError(f"{name}: not a JCAMP-DX file (no ##LABEL= records)")
-    return out
+    return [(label, "\n".join(parts), n) for (label, n), parts in zip(heads, values)]
 
 
 def _blocks(records: list[tuple[str, str, int]]) -> list[list[tuple[str, str, int]]]:
@@ -141,7 +166,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
     """Split a record value into (line number, text) using the markers from _records."""
     out = []
     for i, piece in enumerate(value.split("\n")):
-        m = re.match(r"\x00(\d+)\x00(.*)", piece, re.DOTALL)
+        m = re.match(r"\x00([0-9]+)\x00(.*)", piece, re.DOTALL)
         if m:
             out.append((int(m.group(1)), m.group(2)))
         else:
@@ -150,7 +175,7 @@ def _lines(value: str, first_line: int) -> list[tuple[int, str]]:
 
 
 def _clean(value: str) -> str:
-    return re.sub(r"\x00\d+\x00", "", value).strip()
+    return re.sub(r"\x00[0-9]+\x00", "", value).strip()
 
 
 def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
@@ -158,11 +183,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     title = header.get("TITLE", ("", 0))[0]
     datatype = header.get("DATATYPE", ("", 0))[0]
     if datatype and "NMR" not in datatype.upper() and "PEAK" not in datatype.upper():
-        raise InputError(f"{name} line {header['DATATYPE'][1]}: DATA TYPE '{_short(datatype)}' is not NMR data")
+        line = header["DATATYPE"][1]
+        raise InputError(f"{name} line {line}: DATA TYPE '{short(datatype)}' is not NMR data")
     nucleus = None
     if ".OBSERVENUCLEUS" in header:
-        raw_nucleus = header[".OBSERVENUCLEUS"][0].replace("^", "").replace(" ", "").upper()
-        nucleus = {"1H": "1H", "H1": "1H", "H": "1H", "13C": "13C", "C13": "13C"}.get(raw_nucleus, raw_nucleus)
+        nucleus = _nucleus(header[".OBSERVENUCLEUS"][0])
     observe = None
     if ".OBSERVEFREQUENCY" in header:
         value, line = header[".OBSERVEFREQUENCY"]
@@ -201,12 +226,15 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     m = _VARLIST.match(first)
     if m is None:
         raise InputError(
-            f"{name} line {first_no}: '{_short(first)}' does not name the columns, e.g. (XY..XY) or (XYM..XYM)"
+            f"{name} line {first_no}: '{short(first)}' does not name the columns, e.g. (XY..XY) or (XYM..XYM)"
         )
     variables = m.group(1).upper()
     if m.group(2) and m.group(2).upper() != variables:
-        raise InputError(f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list")
-    if not variables.startswith("X") or set(variables) - set("XYWMA") or len(set(variables)) != len(variables):
+        raise InputError(
+            f"{name} line {first_no}: '({m.group(1)}..{m.group(2)})' is not a JCAMP-DX variable list"
+        )
+    known = set("XYWMA")
+    if not variables.startswith("X") or set(variables) - known or len(set(variables)) != len(variables):
         raise InputError(f"{name} line {first_no}: peak columns '{variables}' not understood (X, Y, W, M, A)")
     lines[0] = (first_no, first[m.end():])
     if label == "PEAKASSIGNMENTS" or "A" in variables:
@@ -237,6 +265,11 @@ def _peaks(block: list[tuple[str, str, int]], name: str) -> JcampPeaks:
     return JcampPeaks(name, title, nucleus, observe, solvent, variables, tuple(peaks))
 
 
+def _nucleus(value: str) -> str:
+    raw = _clean(value).replace("^", "").replace(" ", "").upper()
+    return _NUCLEI.get(raw, raw)
+
+
 def _flat_tuples(lines: list[tuple[int, str]], width: int, name: str) -> list[tuple[list[str], int]]:
     tokens: list[tuple[str, int]] = []
     for n, text in lines:
@@ -263,7 +296,7 @@ def _assignment_tuples(lines: list[tuple[int, str]], name: str) -> list[tuple[li
                 i += 1
                 continue
             if s[i] != "(":
-                raise InputError(f"{name} line {n}: '{_short(s[i:])}' is not a (x, y, …) peak entry")
+                raise InputError(f"{name} line {n}: '{short(s[i:])}' is not a (x, y, …) peak entry")
             values: list[str] = []
             buf = ""
             in_text = False
@@ -312,14 +345,31 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
         if p.m:
             mult = normalise_multiplicity("m" if p.m.upper() == "U" else p.m)
             if mult is None:
-                raise InputError(f"{where}: '{_short(p.m)}' is not a multiplicity (S, D, T, Q, M, U)")
+                raise InputError(f"{where}: '{short(p.m)}' is not a multiplicity (S, D, T, Q, M, U)")
             label = mult.label or ("s" if mult.broad else "m")
             broad, apparent = mult.broad, mult.apparent
             if mult.note:
                 notes.append(f"{where}: {mult.note}")
         text = f"{p.x:g}, {p.y:g}" + (f", {p.m}" if p.m else "") + (f", <{p.a}>" if p.a else "")
         rows.append(RawH1(p.x, p.x, label, [], p.y, False, broad, apparent, p.a, text, where, notes))
+    close = _close_lines(doc)
+    if close:
+        rows[0].notes.append(
+            f"{doc.name}: peaks {close} lie within {LINE_SPACING_HZ:g} Hz of each other — if they are "
+            "the lines of one multiplet, give one row per signal (each row is read as a signal)"
+        )
     return rows
+
+
+def _close_lines(doc: JcampPeaks) -> str:
+    """Neighbouring peaks closer than a typical J: a line list rather than signals."""
+    limit = LINE_SPACING_HZ / (doc.observe_mhz or 400.0)
+    xs = sorted({p.x for p in doc.peaks}, reverse=True)
+    pairs = [(a, b) for a, b in zip(xs, xs[1:]) if a - b < limit]
+    if not pairs:
+        return ""
+    shown = ", ".join(f"{a:.3f}/{b:.3f}" for a, b in pairs[:3])
+    return shown + (" …" if len(pairs) > 3 else "")
 
 
 def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:
@@ -331,9 +381,9 @@ def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:
         attached = None
         if p.m:
             key = p.m.strip().lower()
-            if key in _OFF_RESONANCE:
-                attached = _OFF_RESONANCE[key]
+            if key in OFF_RESONANCE_H:
+                attached = OFF_RESONANCE_H[key]
             elif key not in ("m", "u"):
-                raise InputError(f"{where}: '{_short(p.m)}' is not a 13C multiplicity (S, D, T, Q, M, U)")
+                raise InputError(f"{where}: '{short(p.m)}' is not a 13C multiplicity (S, D, T, Q, M, U)")
         rows.append(RawC13(p.x, 1, attached, f"{p.x:g}" + (f", {p.m}" if p.m else ""), where))
     return rows

@@ -21,17 +21,29 @@ from __future__ import annotations
 import math
 import re
 from dataclasses import dataclass, field
-from typing import Callable, Sequence
+from typing import Any, Sequence
 
 from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, multiplicity_pattern
 from elucidate.parse.formula import MAX_HEAVY_ATOMS
+from elucidate.parse.lexing import (
+    DEPT_LABELS,
+    J_START_RE,
+    MAX_J_HZ,
+    NUMBER,
+    NUMBER_EXP_RE,
+    NUMBER_RE,
+    OFF_RESONANCE_H,
+    read_couplings,
+    read_shift,
+    short,
+    to_float,
+)
 from elucidate.parse.multiplicity import normalise_multiplicity
 
 __all__ = [
     "H1_SHIFT_RANGE",
     "C13_SHIFT_RANGE",
-    "MAX_J_HZ",
     "MAX_H_PER_SIGNAL",
     "RawH1",
     "RawC13",
@@ -42,15 +54,12 @@ __all__ = [
     "read_c13_text",
     "finish_h1",
     "finish_c13",
-    "to_float",
 ]
 
 #: Accepted 1H shifts (ppm); outside this the list is probably not 1H.
 H1_SHIFT_RANGE = (-5.0, 20.0)
 #: Accepted 13C shifts (ppm).
 C13_SHIFT_RANGE = (-20.0, 250.0)
-#: Largest coupling constant accepted (Hz; geminal H–F couplings reach ~50 Hz).
-MAX_J_HZ = 100.0
 #: Largest H count one signal may be given as ("nH").
 MAX_H_PER_SIGNAL = 100.0
 #: Largest relative (unitless) integral accepted.
@@ -58,24 +67,30 @@ MAX_RELATIVE_INTEGRAL = 1.0e6
 #: A scaled integral this close to a whole number counts as that number of H.
 INTEGER_TOLERANCE = 0.2
 
-_NUM = r"[+\-−]?(?:\d+(?:\.\d*)?|\.\d+)"
-_NUM_RE = re.compile(_NUM)
-_NUM_EXP_RE = re.compile(_NUM + r"(?:[eE][+\-]?\d+)?")
-_RANGE_SEP = re.compile(r"\s*(?:–|—|‒|-|−|to\b)\s*")
-_INTEGRAL = re.compile(r"(" + _NUM + r"(?:[eE][+\-]?\d+)?)\s*H(?:'?s)?", re.IGNORECASE)
-_HZ_NUMBER = re.compile(r"(" + _NUM + r")\s*Hz", re.IGNORECASE)
-_J_START = re.compile(
-    r"(?:\d\s*)?J(?P<sub>[^=:\d\s]{0,12})\s*(?:\d(?=\s*[=:]))?\s*[=:≈~]?\s*(?P<rest>.*)", re.DOTALL
-)
+_INTEGRAL = re.compile(r"(" + NUMBER + r"(?:[eE][+\-]?[0-9]+)?)\s*H(?:'?s)?", re.IGNORECASE)
+_HZ_NUMBER = re.compile(r"(" + NUMBER + r")\s*Hz", re.IGNORECASE)
 _DELTA = r"(?:δ|delta|d(?=\s*[=:]))\s*[HC]?\s*(?:\(\s*ppm\s*\)|/\s*ppm|,?\s*ppm)?\s*[:=]?"
 _HEADER = re.compile(
-    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*[-‐ ]?\s*NMR\b\s*"
+    r"\s*(?P<nucleus>1\s*H|¹\s*H|13\s*C|¹³\s*C|proton|carbon|H|C)?\s*(?:\{\s*(?:1|¹)\s*H\s*\})?"
+    r"\s*[-‐ ]?\s*NMR\b\s*"
     r"(?:spectrum\s*)?(?:\((?P<inner>[^()]*)\))?\s*[:,]?\s*(?:" + _DELTA + r")?",
     re.IGNORECASE,
 )
 _DELTA_ONLY = re.compile(r"\s*" + _DELTA, re.IGNORECASE)
-_MHZ = re.compile(r"(" + _NUM + r")\s*MHz", re.IGNORECASE)
-_TEMPERATURE = re.compile(_NUM + r"\s*(?:K|°\s*C|ºC|C)", re.IGNORECASE)
+# "δH (400 MHz; CDCl3) 7.30 (5 H, m)": the header without "NMR"
+_DELTA_HEADER = re.compile(
+    r"\s*(?:δ|delta)\s*(?P<nucleus>[HC])?\s*\((?P<inner>[^()]*)\)\s*[:,]?\s*(?:ppm\b)?\s*[:=]?",
+    re.IGNORECASE,
+)
+# Where a pasted characterisation paragraph moves on to other data.
+_OTHER_DATA = re.compile(
+    r"(?:1\s*H|¹\s*H|13\s*C|¹³\s*C|19\s*F|¹⁹\s*F|31\s*P|³¹\s*P|29\s*Si)"
+    r"\s*(?:\{[^}]*\})?\s*[-‐ ]?\s*NMR\b"
+    r"|(?:HRMS|HR-MS|LRMS|MS|IR|FTIR|FT-IR|UV|Anal\.?|Elemental analysis|m\.\s*p\.|mp|Rf|R_f)\b",
+    re.IGNORECASE,
+)
+_MHZ = re.compile(r"(" + NUMBER + r")\s*MHz", re.IGNORECASE)
+_TEMPERATURE = re.compile(NUMBER + r"\s*(?:K|°\s*C|ºC|C)", re.IGNORECASE)
 
 
 # ----------------------------------------------------------------- raw rows
@@ -119,7 +134,7 @@ class RawC13:
 class PeakList:
     """Result of reading a peak list: signals, warnings, and what the header said."""
 
-    signals: tuple
+    signals: tuple[Any, ...]
     warnings: tuple[str, ...] = ()
     field_mhz: float | None = None
     solvent: str | None = None
@@ -185,11 +200,12 @@ def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
     start, field_mhz, solvent, nucleus = _header(text, "1H list")
     if nucleus == "C":
         raise InputError("1H list: the header says 13C NMR; give a 13C list with --c13 (or c13 =)")
-    raws = [_h1_signal(text, chunk, pos) for chunk, pos in _split_top(text, start, "1H list")]
+    chunks, notes = _until_other_data(_split_top(text, start, "1H list"), "1H list")
+    raws = [_h1_signal(chunk, pos) for chunk, pos in chunks]
     if not raws:
         raise InputError("1H list is empty: no signals found (expected e.g. '7.26 (s, 5H)')")
     signals, warnings = finish_h1(raws, formula)
-    return PeakList(signals, tuple(warnings), field_mhz, solvent)
+    return PeakList(signals, tuple(notes + warnings), field_mhz, solvent)
 
 
 def read_c13_text(text: str) -> PeakList:
@@ -200,12 +216,25 @@ def read_c13_text(text: str) -> PeakList:
     if nucleus == "H":
         raise InputError("13C list: the header says 1H NMR; give a 1H list with --h1 (or h1 =)")
     raws: list[RawC13] = []
-    for chunk, pos in _split_top(text, start, "13C list"):
-        raws.extend(_c13_chunk(text, chunk, pos))
+    chunks, notes = _until_other_data(_split_top(text, start, "13C list"), "13C list")
+    for chunk, pos in chunks:
+        raws.extend(_c13_chunk(chunk, pos))
     if not raws:
         raise InputError("13C list is empty: no shifts found (expected e.g. '171.1, 60.4, 21.0')")
     signals, warnings = finish_c13(raws)
-    return PeakList(signals, tuple(warnings), None, solvent)
+    return PeakList(signals, tuple(notes + warnings), None, solvent)
+
+
+def _until_other_data(chunks: list[tuple[str, int]], what: str) -> tuple[list[tuple[str, int]], list[str]]:
+    """Stop at a chunk that starts other data (``13C NMR …``, ``HRMS …``), with a note."""
+    for k, (chunk, pos) in enumerate(chunks):
+        if k and _OTHER_DATA.match(chunk):
+            note = (
+                f"{what}: text from position {pos + 1} ('{short(chunk, 20)}') is other data and was "
+                f"not read; give a 1H list with --h1 and a 13C list with --c13"
+            )
+            return chunks[:k], [note]
+    return chunks, []
 
 
 # ------------------------------------------------------------ finishing
@@ -219,7 +248,7 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
     for raw in raws:
         _check_h1_raw(raw)
         warnings.extend(raw.notes)
-    counts, scale_warnings = _h_counts(raws, formula)
+    counts, scale_warnings, total_stated = _h_counts(raws, formula)
     warnings.extend(scale_warnings)
     signals = []
     for raw, count in zip(raws, counts):
@@ -239,12 +268,12 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
                 text=raw.text,
             )
         )
-        warnings.extend(_multiplicity_warnings(signals[-1], raw.where))
+        warnings.extend(_multiplicity_warnings(signals[-1]))
     signals.sort(key=lambda s: -s.shift)  # stable: ties keep the written order
     if formula is not None:
         total = sum(s.h_count for s in signals)
         n_h = formula["H"]
-        if abs(total - n_h) > 0.01 and not any("scaled" in w for w in scale_warnings):
+        if abs(total - n_h) > 0.01 and not total_stated:
             if total < n_h:
                 why = "missing exchangeable OH/NH, overlapping signals or an integral too low"
             else:
@@ -275,17 +304,6 @@ def finish_c13(raws: Sequence[RawC13]) -> tuple[tuple[C13Signal, ...], list[str]
     return tuple(out), []
 
 
-def to_float(token: str, what: str, where: str) -> float:
-    """A finite float from text (``−`` accepted as minus), else InputError naming it."""
-    t = token.strip().replace("−", "-")
-    if not _NUM_EXP_RE.fullmatch(t):
-        raise InputError(f"{what} '{_short(token)}' at {where} is not a number")
-    value = float(t)
-    if not math.isfinite(value):
-        raise InputError(f"{what} '{_short(token)}' at {where} is not a finite number")
-    return value
-
-
 # --------------------------------------------------------------- header
 
 
@@ -293,8 +311,10 @@ def _header(text: str, what: str) -> tuple[int, float | None, str | None, str | 
     """Where the signals start, and the field/solvent/nucleus the header states."""
     m = _HEADER.match(text)
     if m is None or not re.search(r"NMR", m.group(0), re.IGNORECASE):
-        d = _DELTA_ONLY.match(text)
-        return (d.end() if d else 0), None, None, None
+        m = _DELTA_HEADER.match(text)
+        if m is None or m.group("inner").strip().lower() == "ppm":
+            d = _DELTA_ONLY.match(text)
+            return (d.end() if d else 0), None, None, None
     nucleus = None
     if m.group("nucleus"):
         nucleus = "C" if "C" in m.group("nucleus").upper() or "3" in m.group("nucleus") else "H"
@@ -349,7 +369,8 @@ def _split_top(text: str, start: int, what: str) -> list[tuple[str, int]]:
     if depth:
         pos = opened[-1]
         raise InputError(
-            f"{what}: '(' at position {pos + 1} is never closed ('{_short(text[pos:])}' — missing ')')"
+            f"{what}: '{text[pos]}' at position {pos + 1} is never closed ('{short(text[pos:])}' — "
+            f"missing '{')' if text[pos] == '(' else ']'}')"
         )
     chunks.append((text[begin:], begin))
     out = []
@@ -386,40 +407,6 @@ def _split_flat(text: str, offset: int) -> list[tuple[str, int]]:
 # --------------------------------------------------------------- signals
 
 
-def _shift_head(text: str, chunk: str, pos: int, what: str) -> tuple[float, float, int]:
-    """Read ``[δ] shift [– shift] [ppm]`` at the start of a chunk; return the end index."""
-    i = 0
-    d = re.match(r"(?:δ|delta)\s*[HC]?\s*[=:]?\s*", chunk, re.IGNORECASE)
-    if d:
-        i = d.end()
-    m = _NUM_RE.match(chunk, i)
-    if m is None:
-        token = re.match(r"[^\s(,;]*", chunk[i:]).group(0) or chunk[i : i + 1]  # type: ignore[union-attr]
-        raise InputError(f"{what}: '{_short(token)}' at position {pos + i + 1} is not a chemical shift")
-    after = m.end()
-    if after < len(chunk) and (chunk[after].isalpha() and chunk[after] not in "p" or chunk[after] in "eE"):
-        token = re.match(r"[^\s(,;]*", chunk[i:]).group(0)  # type: ignore[union-attr]
-        raise InputError(f"{what}: '{_short(token)}' at position {pos + i + 1} is not a chemical shift")
-    a = to_float(m.group(0), f"{what}: shift", f"position {pos + i + 1}")
-    b = a
-    i = m.end()
-    sep = _RANGE_SEP.match(chunk, i)
-    if sep and sep.end() > i:
-        m2 = _NUM_RE.match(chunk, sep.end())
-        if m2 is None:
-            token = re.match(r"[^\s(,;]*", chunk[sep.end() :]).group(0) or chunk[sep.start() : sep.end()]  # type: ignore[union-attr]
-            raise InputError(
-                f"{what}: '{_short(token)}' at position {pos + sep.end() + 1} is not the other end "
-                "of a shift range"
-            )
-        b = to_float(m2.group(0), f"{what}: shift", f"position {pos + sep.end() + 1}")
-        i = m2.end()
-    p = re.match(r"\s*ppm\b", chunk[i:], re.IGNORECASE)
-    if p:
-        i += p.end()
-    return a, b, i
-
-
 def _paren_body(chunk: str, i: int, pos: int, what: str) -> tuple[str | None, int, int]:
     """Details in parentheses after the shift: (body, body offset, end index)."""
     j = i
@@ -436,7 +423,9 @@ def _paren_body(chunk: str, i: int, pos: int, what: str) -> tuple[str | None, in
             depth -= 1
             if depth == 0:
                 if chunk[k] != close:
-                    raise InputError(f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'")
+                    raise InputError(
+                        f"{what}: '{chunk[k]}' at position {pos + k + 1} does not close '{chunk[j]}'"
+                    )
                 return chunk[j + 1 : k], pos + j + 1, k + 1
     raise InputError(f"{what}: '(' at position {pos + j + 1} is never closed")
 
@@ -447,20 +436,20 @@ def _tail_check(chunk: str, i: int, pos: int, what: str) -> None:
         return
     k = i + (len(chunk[i:]) - len(chunk[i:].lstrip()))
     raise InputError(
-        f"{what}: unexpected '{_short(rest)}' at position {pos + k + 1} (signals are written "
+        f"{what}: unexpected '{short(rest)}' at position {pos + k + 1} (signals are written "
         "'shift (mult, J = … Hz, nH)' and separated by commas or semicolons)"
     )
 
 
-def _h1_signal(text: str, chunk: str, pos: int) -> RawH1:
+def _h1_signal(chunk: str, pos: int) -> RawH1:
     what = "1H list"
-    a, b, i = _shift_head(text, chunk, pos, what)
+    a, b, i = read_shift(chunk, pos, what)
     body, body_pos, i = _paren_body(chunk, i, pos, what)
     _tail_check(chunk, i, pos, what)
     where = f"position {pos + 1}"
     if body is None:
         raise InputError(
-            f"{what}: signal '{_short(chunk)}' at {where} has no details: give at least the H "
+            f"{what}: signal '{short(chunk)}' at {where} has no details: give at least the H "
             "count, e.g. '7.26 (s, 1H)'"
         )
     raw = RawH1(a, b, "", [], 0.0, True, text=chunk.rstrip(" ."), where=where)
@@ -475,19 +464,22 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
     absolute = True
     j_open = False
     assignment: list[str] = []
-    for part, ppos in _split_flat(body, body_pos):
+    parts = [(part, ppos) for part, ppos in _split_flat(body, body_pos) if part]
+    for k, (part, ppos) in enumerate(parts):
         at = f"position {ppos + 1}"
-        if not part:
-            continue
+        if j_open and integral is None and k == len(parts) - 1 and _j_list_full(label, raw.couplings):
+            # "(d, J = 8.0, 0.98)": the multiplicity has all its J, so the last bare
+            # number is the (relative) integral, not another coupling constant.
+            j_open = False
         # 1. coupling constants
-        jm = _J_START.fullmatch(part)
+        jm = J_START_RE.fullmatch(part)
         if jm and not normalise_multiplicity(part):
-            values, closed = _j_values(jm.group("rest"), ppos + jm.start("rest"))
+            values, closed = read_couplings(jm.group("rest"), ppos + jm.start("rest"))
             raw.couplings.extend(values)
             j_open = not closed
             continue
-        if _HZ_NUMBER.fullmatch(part) or (j_open and _NUM_RE.fullmatch(part)):
-            values, closed = _j_values(part, ppos)
+        if _HZ_NUMBER.fullmatch(part) or (j_open and NUMBER_RE.fullmatch(part)):
+            values, closed = read_couplings(part, ppos)
             raw.couplings.extend(values)
             j_open = not closed
             continue
@@ -496,14 +488,14 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
         im = _INTEGRAL.fullmatch(part)
         if im:
             if integral is not None:
-                raise InputError(f"{what}: second H count '{part}' at {at} in signal '{_short(chunk)}'")
+                raise InputError(f"{what}: second H count '{part}' at {at} in signal '{short(chunk)}'")
             integral = _integral_value(im.group(1), part, at, absolute=True)
             absolute = True
             continue
         # 3. multiplicity (and the flags br / app)
         mult = normalise_multiplicity(part)
-        if mult is not None and (label is None or (not label and mult.label)):
-            if label is None or mult.label:
+        if mult is not None and (not mult.label or not label):
+            if mult.label:
                 label = mult.label
             raw.broad = raw.broad or mult.broad
             raw.apparent = raw.apparent or mult.apparent
@@ -511,10 +503,10 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
                 raw.notes.append(f"1H signal at {where}: {mult.note}")
             continue
         # 4. a bare number: a relative integral
-        if _NUM_EXP_RE.fullmatch(part.replace("−", "-")):
+        if NUMBER_EXP_RE.fullmatch(part.replace("−", "-")):
             if integral is not None:
                 raise InputError(
-                    f"{what}: extra number '{part}' at {at} in signal '{_short(chunk)}' "
+                    f"{what}: extra number '{part}' at {at} in signal '{short(chunk)}' "
                     "(a J value needs 'J' before it or 'Hz' after it)"
                 )
             integral = _integral_value(part, part, at, absolute=False)
@@ -525,62 +517,27 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
             assignment.append(part)
             continue
         raise InputError(
-            f"{what}: '{_short(part)}' at {at} is not a multiplicity, a J value or an H count"
+            f"{what}: '{short(part)}' at {at} is not a multiplicity, a J value or an H count"
         )
     if integral is None:
         raise InputError(
-            f"{what}: signal '{_short(chunk)}' at {where} has no H count (e.g. '2H')"
+            f"{what}: signal '{short(chunk)}' at {where} has no H count (e.g. '2H')"
         )
     if not label:
         if raw.broad:
             label = "s"
         else:
             label = "m"
-            raw.notes.append(f"1H signal '{_short(chunk)}' at {where} has no multiplicity: read as m")
+            raw.notes.append(f"1H signal '{short(chunk)}' at {where} has no multiplicity: read as m")
     raw.multiplicity = label
     raw.integral = integral
     raw.absolute = absolute
     raw.assignment = ", ".join(assignment) if assignment else None
 
 
-def _j_values(rest: str, pos: int, locate: Callable[[int], str] | None = None) -> tuple[list[float], bool]:
-    """Numbers of a J list (``7.9, 1.7 Hz``, ``7.9 and 1.7``, ``7.9/1.7``); closed by Hz.
-
-    ``locate(i)`` names the place of character ``i`` of ``rest`` in messages;
-    by default ``position pos + i + 1`` of the 1H text.
-    """
-    if locate is None:
-        def locate(i: int) -> str:
-            return f"position {pos + i + 1} of the 1H list"
-
-    values: list[float] = []
-    closed = False
-    i = 0
-    n = len(rest)
-    while i < n:
-        if rest[i].isspace() or rest[i] in ",/&":
-            i += 1
-            continue
-        if rest.startswith("and", i) and (i + 3 == n or not rest[i + 3].isalpha()):
-            i += 3
-            continue
-        hz = re.match(r"Hz\b\.?", rest[i:], re.IGNORECASE)
-        if hz:
-            closed = True
-            i += hz.end()
-            continue
-        m = _NUM_EXP_RE.match(rest, i)
-        if m is None or closed:
-            token = re.match(r"\S*", rest[i:]).group(0)  # type: ignore[union-attr]
-            raise InputError(f"'{_short(token)}' at {locate(i)} is not a coupling constant")
-        value = abs(to_float(m.group(0), "J", locate(i)))
-        if not 0 < value <= MAX_J_HZ:
-            raise InputError(
-                f"J '{m.group(0)}' at {locate(i)} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)"
-            )
-        values.append(value)
-        i = m.end()
-    return values, closed
+def _j_list_full(label: str | None, couplings: list[float]) -> bool:
+    pattern = multiplicity_pattern(label) if label else None
+    return pattern is not None and label != "s" and len(couplings) >= len(pattern)
 
 
 def _integral_value(number: str, token: str, at: str, *, absolute: bool) -> float:
@@ -588,7 +545,7 @@ def _integral_value(number: str, token: str, at: str, *, absolute: bool) -> floa
     limit = MAX_H_PER_SIGNAL if absolute else MAX_RELATIVE_INTEGRAL
     if not 0 < value <= limit:
         raise InputError(
-            f"1H list: integral '{_short(token)}' at {at} is not a plausible H count "
+            f"1H list: integral '{short(token)}' at {at} is not a plausible H count "
             f"(0 < n ≤ {limit:g})"
         )
     return value
@@ -610,10 +567,12 @@ def _check_h1_raw(raw: RawH1) -> None:
         )
     for j in raw.couplings:
         if not (math.isfinite(j) and 0 < j <= MAX_J_HZ):
-            raise InputError(f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)")
+            raise InputError(
+                f"J '{j:g}' at {raw.where} is not a coupling constant (0 < J ≤ {MAX_J_HZ:g} Hz)"
+            )
 
 
-def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
+def _multiplicity_warnings(sig: H1Signal) -> list[str]:
     out = []
     if sig.multiplicity == "s" and sig.couplings:
         out.append(f"1H signal at {sig.shift:g} ppm is a singlet but lists J values")
@@ -629,27 +588,35 @@ def _multiplicity_warnings(sig: H1Signal, where: str) -> list[str]:
 # ------------------------------------------------------------- integrals
 
 
-def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str]]:
-    """H per signal: as written, or relative integrals scaled to the formula."""
+def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[float], list[str], bool]:
+    """H per signal: as written, or relative integrals scaled to the formula.
+
+    The flag is True when a warning already states how the total compares
+    with the formula (the integrals were rescaled).
+    """
     values = [float(r.integral) for r in raws]
     relative = any(not r.absolute for r in raws) or any(abs(v - round(v)) > 0.05 for v in values)
     if not relative:
-        return values, []
+        return values, [], False
     if formula is None:
-        return values, ["1H integrals look relative and no formula was given: H counts left as written"]
+        note = "1H integrals look relative and no formula was given: H counts left as written"
+        return values, [note], False
     n_h = formula["H"]
     if n_h == 0:
         raise InputError(f"formula {formula.hill} has no H, but a 1H peak list was given")
     total = sum(values)
     shown = ", ".join(f"{v:g}" for v in values[:4]) + (", …" if len(values) > 4 else "")
-    # Largest whole-number total <= formula H that makes every signal a whole number of H.
-    for target in range(n_h, max(len(values), math.ceil(n_h / 2)) - 1, -1):
+    # Largest whole-number total <= formula H that makes every signal a whole number of H;
+    # at most the H that could sit on O, S, N, P (exchangeable, often unseen) may be missing.
+    exchangeable = formula["O"] + formula["S"] + 2 * (formula["N"] + formula["P"])
+    lowest = max(len(values), n_h - exchangeable, 1)
+    for target in range(n_h, lowest - 1, -1):
         factor = target / total
         scaled = [v * factor for v in values]
         if all(round(x) >= 1 and abs(x - round(x)) <= INTEGER_TOLERANCE for x in scaled):
             counts = [float(round(x)) for x in scaled]
             if abs(factor - 1) < 1e-9:
-                return counts, []
+                return counts, [], False
             msg = (
                 f"relative 1H integrals ({shown}) scaled ×{factor:.3g} to whole H counts "
                 f"totalling {target} H"
@@ -659,26 +626,25 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
                     f"; {formula.hill} has {n_h} H, so {n_h - target} H are not seen "
                     "(exchangeable OH/NH?)"
                 )
-            return counts, [msg]
+            return counts, [msg], True
     factor = n_h / total
     counts = [round(v * factor, 2) for v in values]
     return counts, [
         f"relative 1H integrals ({shown}) do not scale to whole numbers of H; scaled ×{factor:.3g} "
         f"to the {n_h} H of {formula.hill} as {', '.join(f'{c:g}' for c in counts[:6])}"
-    ]
+    ], True
 
 
 # ------------------------------------------------------------------- 13C
 
 
-_DEPT = {
-    "ch3": 3, "ch2": 2, "ch": 1, "c": 0, "cq": 0, "c_q": 0, "qc": 0, "quat": 0, "quaternary": 0,
-    "cquat": 0, "c quat": 0, "ch₃": 3, "ch₂": 2,
-}
-_OFF_RESONANCE = {"s": 0, "d": 1, "t": 2, "q": 3}
+# "2C", "2 C", "x2", "2x", "2 x CH" (× already turned into x; lower case)
+_CARBON_COUNT = re.compile(
+    r"([0-9]{1,6})\s*c|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|cq|c)"
+)
 
 
-def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
+def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
     """One comma-separated chunk: one or more ``shift [(details)]`` separated by spaces."""
     out = []
     i = 0
@@ -688,10 +654,10 @@ def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
             i += 1
         if i >= len(chunk) or chunk[i:].strip() == ".":
             break
-        a, b, j = _shift_head(text, chunk[i:], pos + i, what)
+        a, b, j = read_shift(chunk[i:], pos + i, what)
         if a != b:
             raise InputError(
-                f"{what}: '{_short(chunk[i:i + j])}' at position {pos + i + 1} is a range; "
+                f"{what}: '{short(chunk[i:i + j])}' at position {pos + i + 1} is a range; "
                 "13C shifts are single values"
             )
         body, body_pos, k = _paren_body(chunk[i:], j, pos + i, what)
@@ -702,38 +668,32 @@ def _c13_chunk(text: str, chunk: str, pos: int) -> list[RawC13]:
         out.append(raw)
         i += k
         nxt = chunk[i:].lstrip()
-        if nxt and not _NUM_RE.match(nxt) and not re.match(r"(?:δ|delta)", nxt) and nxt != ".":
+        if nxt and not NUMBER_RE.match(nxt) and not re.match(r"(?:δ|delta)", nxt) and nxt != ".":
             _tail_check(chunk, i, pos, what)
     return out
 
 
 def _c13_details(raw: RawC13, body: str, body_pos: int) -> None:
     parts = _split_flat(body, body_pos)
-    has_j = any(_J_START.fullmatch(p) and p.strip().upper().startswith(("J", "1J", "2J", "3J", "4J")) for p, _ in parts)
+    has_j = any(J_START_RE.fullmatch(p) for p, _ in parts)
     for part, ppos in parts:
         at = f"position {ppos + 1}"
         key = " ".join(part.lower().replace("×", " x ").split())
         if not key:
             continue
-        m = re.fullmatch(r"(\d{1,6})\s*c(?:\s*x)?|x\s*(\d{1,6})|(\d{1,6})\s*x|(\d{1,6})\s*x\s*(ch3|ch2|ch|c|cq)", key)
+        m = _CARBON_COUNT.fullmatch(key)
         if m:
             digits = next(g for g in m.groups()[:4] if g)
             raw.carbons = int(digits)
             if m.group(5):
-                raw.attached_h = _DEPT[m.group(5)]
+                raw.attached_h = DEPT_LABELS[m.group(5)]
             if not 1 <= raw.carbons <= MAX_HEAVY_ATOMS:
                 raise InputError(f"13C list: carbon count '{part}' at {at} must be 1 to {MAX_HEAVY_ATOMS}")
             continue
-        if key in _DEPT:
-            raw.attached_h = _DEPT[key]
+        if key in DEPT_LABELS:
+            raw.attached_h = DEPT_LABELS[key]
             continue
-        if key in _OFF_RESONANCE and not has_j:
-            raw.attached_h = _OFF_RESONANCE[key]
+        if key in OFF_RESONANCE_H and not has_j:
+            raw.attached_h = OFF_RESONANCE_H[key]
             continue
         # anything else (assignments such as C=O, J to F/P, solvent notes) is kept in the text only
-
-
-def _short(token: str, limit: int = 30) -> str:
-    token = " ".join(token.split())
-    return token if len(token) <= limit else token[: limit - 1] + "…"
-

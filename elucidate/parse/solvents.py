@@ -104,27 +104,34 @@ def normalise_solvent(name: str) -> tuple[str, bool]:
 
 
 def h1_solvent_warnings(signals: Sequence[H1Signal], solvent: str | None) -> list[str]:
-    """Warnings for 1H signals at the solvent's residual or water position."""
+    """Warnings for 1H signals that could be the residual solvent signal or water.
+
+    Only single-shift signals that look like one are flagged: the residual
+    signal appears as a singlet (CHCl3, C6HD5) or a small quintet (CHD2 groups),
+    water as a singlet, often broad.  A doublet, a triplet or a multiplet range
+    at the same place is the compound's own signal (it may overlap the solvent,
+    which is common for aromatic H in CDCl3, but it is not the solvent).
+    """
     row = find_solvent(solvent)
     if row is None:
         return []
     out = []
-    checks = (
-        (row.residual_1h, H1_RESIDUAL_TOLERANCE, f"the residual {row.name} signal"),
-        (row.water_1h, H1_WATER_TOLERANCE, f"water in {row.name}"),
-    )
     for sig in signals:
-        for pos, tol, what in checks:
-            if pos is None:
-                continue
-            if sig.shift_low < sig.shift_high:
-                hit = sig.shift_low <= pos <= sig.shift_high
-            else:
-                hit = abs(sig.shift - pos) <= tol
-            if hit:
+        if sig.shift_low < sig.shift_high:
+            continue
+        if row.residual_1h is not None and sig.multiplicity in ("s", "quint", "m"):
+            if abs(sig.shift - row.residual_1h) <= H1_RESIDUAL_TOLERANCE:
                 out.append(
-                    f"1H signal at {_fmt_signal(sig)} ppm ({sig.h_count:g} H) is at the position of "
-                    f"{what} ({pos:.2f} ppm): check it is not the solvent or water"
+                    f"1H signal at {sig.shift:.2f} ppm ({sig.multiplicity}, {sig.h_count:g} H) is at "
+                    f"the residual {row.name} signal ({row.residual_1h:.2f} ppm): check it is not "
+                    "the solvent"
+                )
+        if row.water_1h is not None and sig.multiplicity == "s":
+            if abs(sig.shift - row.water_1h) <= H1_WATER_TOLERANCE:
+                out.append(
+                    f"1H signal at {sig.shift:.2f} ppm ({'br ' if sig.broad else ''}s, "
+                    f"{sig.h_count:g} H) is at the position of water in {row.name} "
+                    f"({row.water_1h:.2f} ppm): check it is not water"
                 )
     return out
 
@@ -143,9 +150,3 @@ def c13_solvent_warnings(signals: Sequence[C13Signal], solvent: str | None) -> l
                     f"({pos:.2f} ppm): check it is not the solvent"
                 )
     return out
-
-
-def _fmt_signal(sig: H1Signal) -> str:
-    if sig.shift_low < sig.shift_high:
-        return f"{sig.shift_high:.2f}–{sig.shift_low:.2f}"
-    return f"{sig.shift:.2f}"

@@ -22,24 +22,36 @@ from typing import Mapping
 
 from elucidate.errors import InputError
 from elucidate.parse.formula import MAX_HEAVY_ATOMS
-from elucidate.parse.multiplicity import normalise_multiplicity
-from elucidate.parse.peaks import (
-    RawC13,
-    RawH1,
-    _DEPT,
-    _OFF_RESONANCE,
-    _J_START,
-    _j_values,
-    _shift_head,
-    _short,
+from elucidate.parse.lexing import (
+    DEPT_LABELS,
+    J_START_RE,
+    OFF_RESONANCE_H,
+    read_couplings,
+    read_shift,
+    short,
     to_float,
 )
+from elucidate.parse.multiplicity import normalise_multiplicity
+from elucidate.parse.peaks import RawC13, RawH1
 
-__all__ = ["Table", "read_table", "h1_rows", "c13_rows", "looks_like_table", "row_to_h1", "row_to_c13"]
+__all__ = [
+    "MAX_ROWS",
+    "Table",
+    "column_role",
+    "read_table",
+    "h1_rows",
+    "c13_rows",
+    "looks_like_table",
+    "row_to_h1",
+    "row_to_c13",
+]
 
 csv.field_size_limit(1 << 20)
 
-# Normalised header name -> role.  Order of checks in _role() handles prefixes.
+#: More rows than this is not a table of signals.
+MAX_ROWS = 200
+
+# Normalised header name -> role.  Order of checks in column_role() handles prefixes.
 _EXACT = {
     # shift
     "shift": "shift", "delta": "shift", "deltappm": "shift", "ppm": "shift", "shiftppm": "shift",
@@ -96,7 +108,12 @@ def _norm(header: str) -> str:
     return re.sub(r"[^a-z0-9]", "", h)
 
 
-def _role(header: str, nucleus: str) -> str | None:
+def column_role(header: str, nucleus: str) -> str | None:
+    """The role a column header names (``"shift"``, ``"mult"``, ``"j"``, ``"nh"`` …), or None.
+
+    >>> column_role("δ (ppm)", "1H"), column_role("No. of H", "1H"), column_role("Mult.", "13C")
+    ('shift', 'nh', 'dept')
+    """
     key = _norm(header)
     if nucleus == "13C" and key in ("h", "nh", "mult", "multiplicity", "hs", "m"):
         return "dept"
@@ -115,8 +132,8 @@ def looks_like_table(text: str) -> bool:
         if not s or s.startswith("#"):
             continue
         cells = _cells(s, _delimiter(s))
-        return len(cells) >= 2 and sum(_role(c, "1H") is not None for c in cells) >= 2 and not re.match(
-            r"\s*[+\-−]?\d", s
+        return len(cells) >= 2 and sum(column_role(c, "1H") is not None for c in cells) >= 2 and not re.match(
+            r"\s*[+\-−]?[0-9]", s
         )
     return False
 
@@ -159,7 +176,7 @@ def read_table(text: str, name: str, nucleus: str) -> Table:
     ignored: list[str] = []
     seen: dict[str, str] = {}
     for h in headers:
-        role = _role(h, nucleus)
+        role = column_role(h, nucleus)
         if role is None or role in seen:
             ignored.append(h)
             roles.append("")
@@ -189,11 +206,16 @@ def read_table(text: str, name: str, nucleus: str) -> Table:
         raise InputError(f"{name}: not a readable table ({err})") from err
     if not rows:
         raise InputError(f"{name}: the table has a header but no peaks")
+    if len(rows) > MAX_ROWS:
+        raise InputError(
+            f"{name}: {len(rows)} rows — more than {MAX_ROWS}; this looks like a line list of a "
+            "whole spectrum, give one row per signal"
+        )
     return Table(name, tuple(roles), tuple(rows), tuple(ignored), decimal_comma)
 
 
 def _num(cell: str, what: str, where: str, decimal_comma: bool) -> float:
-    if decimal_comma and re.fullmatch(r"[+\-−]?\d+,\d+", cell.strip()):
+    if decimal_comma and re.fullmatch(r"[+\-−]?[0-9]+,[0-9]+", cell.strip()):
         cell = cell.replace(",", ".")
     return to_float(cell, what, where)
 
@@ -210,17 +232,17 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
         if not cell:
             raise InputError(f"{where}: no shift")
         if decimal_comma:
-            cell = re.sub(r"(\d),(\d)", r"\1.\2", cell)
-        a, b, end = _shift_head(cell, cell, 0, where)
+            cell = re.sub(r"([0-9]),([0-9])", r"\1.\2", cell)
+        a, b, end = read_shift(cell, 0, where)
         if cell[end:].strip():
-            raise InputError(f"{where}: shift '{_short(cell)}' is not a shift or a range")
+            raise InputError(f"{where}: shift '{short(cell)}' is not a shift or a range")
     mult_cell = row.get("mult", "")
     notes: list[str] = []
     broad = apparent = False
     if mult_cell:
         mult = normalise_multiplicity(mult_cell)
         if mult is None:
-            raise InputError(f"{where}: '{_short(mult_cell)}' is not a multiplicity")
+            raise InputError(f"{where}: '{short(mult_cell)}' is not a multiplicity")
         label, broad, apparent = mult.label, mult.broad, mult.apparent
         if mult.note:
             notes.append(f"{where}: {mult.note}")
@@ -232,11 +254,11 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
     couplings: list[float] = []
     j_cell = row.get("j", "")
     if j_cell:
-        jm = _J_START.fullmatch(j_cell)
+        jm = J_START_RE.fullmatch(j_cell)
         rest = jm.group("rest") if jm else j_cell
-        if decimal_comma and re.fullmatch(r"\s*\d+,\d+\s*(?:Hz)?\s*", rest):
+        if decimal_comma and re.fullmatch(r"\s*[0-9]+,[0-9]+\s*(?:Hz)?\s*", rest):
             rest = rest.replace(",", ".")
-        couplings, _ = _j_values(rest, 0, lambda i: f"{where} (J column)")
+        couplings, _ = read_couplings(rest, 0, lambda i: f"{where} (J column)")
     if "nh" in row:
         cell = re.sub(r"\s*H\s*$", "", row["nh"], flags=re.IGNORECASE)
         integral = _num(cell, "H count", where, decimal_comma)
@@ -274,14 +296,14 @@ def row_to_c13(row: Mapping[str, str], where: str, *, decimal_comma: bool = Fals
     dept = row.get("dept", "").strip()
     if dept:
         key = " ".join(dept.lower().split())
-        if key in _DEPT:
-            attached = _DEPT[key]
-        elif key in _OFF_RESONANCE:
-            attached = _OFF_RESONANCE[key]
+        if key in DEPT_LABELS:
+            attached = DEPT_LABELS[key]
+        elif key in OFF_RESONANCE_H:
+            attached = OFF_RESONANCE_H[key]
         elif key in ("0", "1", "2", "3"):
             attached = int(key)
         else:
-            raise InputError(f"{where}: '{_short(dept)}' is not a carbon type (CH3, CH2, CH, C or 3/2/1/0)")
+            raise InputError(f"{where}: '{short(dept)}' is not a carbon type (CH3, CH2, CH, C or 3/2/1/0)")
     text = ", ".join(f"{k}={v}" for k, v in row.items())
     return RawC13(shift, carbons, attached, text, where)
 

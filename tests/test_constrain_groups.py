@@ -138,3 +138,13 @@ def test_attachment_classes():
 def test_bad_arguments():
     with pytest.raises(InputError, match="margin"):
         proton_groups(ETHYL_ACETATE, margin=-1)
+
+
+def test_amide_nh_splitting_allowed():
+    # N-methylacetamide (from memory): 2.80 (d, J = 4.8 Hz, 3H) — the CH3
+    # couples to the amide NH, which the neighbour count (H on C) leaves out.
+    p = Problem(formula(C=3, H=7, N=1, O=1),
+                (sig(5.90, "s", 1, broad=True), sig(2.80, "d", 3, [4.8]), sig(1.98, "s", 3)))
+    best = proton_groups(p).hypotheses[0]
+    ch3 = [g for g in best.groups if g.signals == (1,)]
+    assert ch3 and 0 in ch3[0].neighbour_h

@@ -162,7 +162,12 @@ def attachment_class(signal: H1Signal) -> str:
 
 
 def neighbour_counts(
-    signal: H1Signal, formula: Formula, solvent: str | None = None, *, has_xh: bool = False
+    signal: H1Signal,
+    formula: Formula,
+    solvent: str | None = None,
+    *,
+    has_xh: bool = False,
+    has_nh: bool = False,
 ) -> frozenset[int] | None:
     """Allowed numbers of H on carbons bonded to the atom(s) of this signal.
 
@@ -170,7 +175,9 @@ def neighbour_counts(
     ``dq`` four.  Couplings below 3.2 Hz may be long-range (meta, allylic)
     and count as optional.  ``m``, broad and apparent-second-order signals
     give no rule (``None``).  H–F and H–P couplings also split signals, so a
-    formula with F or P only bounds the count from above.
+    formula with F or P only bounds the count from above; so do NH (amides,
+    slow exchange) and OH in DMSO-d6 or acetone-d6, which the generator's
+    count (H on carbon only) leaves out.
 
     Examples
     --------
@@ -199,7 +206,12 @@ def neighbour_counts(
         allowed = set(range(0, required + optional + 3))
     if formula["F"] or formula["P"]:
         allowed = set(range(0, required + optional + 1))
-    elif has_xh and solvent and any(s in solvent.lower() for s in _SOLVENTS_SHOWING_XH_COUPLING):
+    elif has_nh or (
+        has_xh and solvent and any(s in solvent.lower() for s in _SOLVENTS_SHOWING_XH_COUPLING)
+    ):
+        # amide NH exchanges slowly and splits its neighbours (CH3-NH: d,
+        # J ~5 Hz); OH does so in DMSO-d6/acetone-d6 (common practice). The
+        # generator counts only H on carbon, so allow up to two fewer.
         allowed |= {v - k for v in allowed for k in (1, 2) if v - k >= 0}
     return frozenset(allowed)
 
@@ -413,12 +425,13 @@ def _build(problem: Problem, formula: Formula, hs: list[int], values: dict, cost
     has_xh = any(
         v for (i, k), v in values.items() if k in ("OH", "NH", "NH2", "SH") and v
     )
+    has_nh = any(v for (i, k), v in values.items() if k in ("NH", "NH2") and v)
     halves: list[int] = []
     for i, s in enumerate(problem.h1):
         kinds = [(k, values.get((i, k), 0)) for k, _, _ in GROUP_KINDS]
         present = [(k, v) for k, v in kinds if v]
         pure = len(present) == 1 and present[0][0] in ("CH3", "CH2", "CH")
-        nb = neighbour_counts(s, formula, problem.solvent, has_xh=has_xh) if pure else None
+        nb = neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh) if pure else None
         text = []
         for kind, count in present:
             text.append(f"{count} {kind}" if count > 1 else kind)

@@ -26,12 +26,13 @@ from __future__ import annotations
 import functools
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 from elucidate.errors import InputError
 from elucidate.model import Assignment, Environment, H1Signal, Prediction, Problem, multiplicity_pattern
 from elucidate.score import reasons as rs
 
-__all__ = ["Weights", "Fit", "quick_bound", "assign", "carbon_cost", "signal_tolerance"]
+__all__ = ["Weights", "Fit", "quick_bound", "assign", "carbon_cost", "signal_tolerance", "unusual_groups"]
 
 
 @dataclass(frozen=True)
@@ -469,3 +470,51 @@ def carbon_cost(problem: Problem, prediction: Prediction, w: Weights = Weights()
         bad = True
         notes.append(f"13C shifts fit poorly (mean cost {mean:.1f} typical errors per carbon)")
     return w.carbon_shift * total / max(n, k) * 3.0, notes, bad
+
+
+# --------------------------------------------------------- plausibility
+
+
+@functools.cache
+def _unusual_table() -> tuple[tuple[str, Any, float, str], ...]:
+    """Rows of data/unusual.csv as (name, compiled SMARTS, weight, source)."""
+    import csv
+    from importlib import resources
+
+    from rdkit import Chem
+
+    text = resources.files("elucidate.score").joinpath("data/unusual.csv").read_text(encoding="utf-8")
+    rows = []
+    for row in csv.DictReader(text.splitlines()):
+        query = Chem.MolFromSmarts(row["smarts"])
+        if query is None:
+            raise InputError(f"score/data/unusual.csv: SMARTS {row['smarts']!r} does not parse")
+        rows.append((row["name"], query, float(row["weight"]), row["source"]))
+    return tuple(rows)
+
+
+def unusual_groups(smiles: str) -> tuple[float, tuple[str, ...]]:
+    """Soft prior against rarely isolated groups (ynamines, simple enols,
+    peroxides, ...), from ``score/data/unusual.csv`` (source per row).
+
+    Returns (cost, notes); a structure without such groups costs 0.
+
+    Examples
+    --------
+    >>> unusual_groups("CCOC(C)=O")
+    (0.0, ())
+    >>> unusual_groups("NC#Cc1ccccc1")[0]
+    2.0
+    """
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    if mol is None:
+        raise InputError(f"SMILES {smiles!r} does not parse")
+    cost = 0.0
+    notes = []
+    for name, query, weight, source in _unusual_table():
+        if mol.HasSubstructMatch(query):
+            cost += weight
+            notes.append(f"contains a {name}: +{weight:g} ({source})")
+    return cost, tuple(notes)

@@ -1,0 +1,266 @@
+"""Tests of the structure generator against published counts and a reference enumerator.
+
+Check values: /work/shared/reference/trade-facts.md ("Isomer counts").
+"""
+
+from __future__ import annotations
+
+import re
+import sys
+from pathlib import Path
+
+import pytest
+from rdkit import Chem
+
+from elucidate.errors import InputError, LimitReached
+from elucidate.generate import AtomSpec, Limits, Options, Spec, Stats, count, generate
+from elucidate.model import Formula
+
+sys.path.insert(0, str(Path(__file__).parent))
+from _reference_isomers import reference_isomers, satisfies_atoms  # noqa: E402
+
+
+def F(text: str) -> Formula:
+    counts: dict[str, int] = {}
+    for el, n in re.findall(r"([A-Z][a-z]?)(\d*)", text):
+        counts[el] = counts.get(el, 0) + (int(n) if n else 1)
+    order = ["C", "H"] + sorted(el for el in counts if el not in ("C", "H"))
+    return Formula(tuple((el, counts[el]) for el in order if el in counts))
+
+
+# Alkanes CnH2n+2, n = 1..16: OEIS A000602 (number of n-node unrooted quartic trees).
+ALKANES = [1, 1, 1, 2, 3, 5, 9, 18, 35, 75, 159, 355, 802, 1858, 4347, 10359]
+
+
+@pytest.mark.parametrize("n, expected", list(enumerate(ALKANES, start=1)))
+def test_alkanes_match_oeis_a000602(n: int, expected: int) -> None:
+    assert count(Spec(F(f"C{n}H{2 * n + 2}"))) == expected  # OEIS A000602
+
+
+# Alcohols CnH2n+1OH, n = 1..10: OEIS A000598 (rooted quartic trees), offset 1.
+ALCOHOLS = [1, 1, 2, 4, 8, 17, 39, 89, 211, 507]
+
+
+@pytest.mark.parametrize("n, expected", list(enumerate(ALCOHOLS, start=1)))
+def test_alcohols_match_oeis_a000598(n: int, expected: int) -> None:
+    spec = Spec(F(f"C{n}H{2 * n + 2}O"), require=("[OX2H1][CX4]",))
+    assert count(spec) == expected  # OEIS A000598
+
+
+# Independent exhaustive counts, trade-facts.md (Kekulé forms counted once).
+COUNTS = [
+    ("C2H4O", 3),
+    ("C3H6O", 9),
+    ("C3H6O2", 34),
+    ("C4H8O", 26),
+    ("C4H8O2", 122),  # also named in issue 3
+    ("C5H10O", 74),  # also named in issue 3
+    ("C3H9N", 4),
+    ("C4H11N", 8),
+    ("C3H7Cl", 2),
+    ("C2H6O", 2),
+    ("C3H8O", 3),
+    ("C4H10O", 7),
+    ("C5H12O", 14),
+    ("C4H8", 5),
+    ("C5H10", 10),
+    ("C6H6", 217),  # widely quoted; trade-facts.md
+    ("C7H8", 1031),
+    ("C8H16", 139),
+    ("C6H12O2", 1313),
+    ("C8H10", 4678),  # 4679 bond-order graphs; o-xylene's two Kekulé forms are one
+    ("C8H8", 7427),
+    ("C6H4O2", 12087),
+    ("C7H6O", 15781),  # 15804 bond-order graphs
+    ("C7H9N", 24306),
+]
+
+
+@pytest.mark.parametrize("formula, expected", COUNTS)
+def test_published_isomer_counts(formula: str, expected: int) -> None:
+    assert count(Spec(F(formula))) == expected  # trade-facts.md, independent exhaustive counts
+
+
+def test_kekule_forms_are_one_structure() -> None:
+    # C8H10: 4679 bond-order graphs but 4678 compounds (trade-facts.md)
+    stats = Stats()
+    smiles = list(generate(Spec(F("C8H10")), stats=stats))
+    assert len(smiles) == len(set(smiles)) == 4678
+    assert "Cc1ccccc1C" in smiles  # o-xylene once
+
+
+# Reference enumerator (tests/_reference_isomers.py) on many small formulas.
+SMALL = [
+    "CH4", "CH2O", "CH2O2", "C2H2", "C2H4", "C2H3N", "C2H4O2", "C3H4", "C3H4O", "C3H3N",
+    "C3H6O", "C3H7NO", "C4H4O", "C4H6", "C4H5N", "C4H8O", "C2H5Cl", "C2H2Cl2", "C2H6S",
+    "CH5N3", "C2H4N2", "C3H6O2", "C5H6", "C2HF3", "CH3NO", "C2H6Si", "CH3P", "C6H6",
+]
+
+
+@pytest.mark.parametrize("formula", SMALL)
+def test_agrees_with_reference_enumerator(formula: str) -> None:
+    got = list(generate(Spec(F(formula))))
+    assert len(got) == len(set(got))
+    assert set(got) == reference_isomers(F(formula).as_dict())
+
+
+def _rings_through(mol: Chem.Mol, bond: Chem.Bond) -> int:
+    """Size of the smallest ring through a bond (0 if none), by breadth-first search."""
+    u, v = bond.GetBeginAtomIdx(), bond.GetEndAtomIdx()
+    dist = {u: 0}
+    todo = [u]
+    for a in todo:
+        for b in mol.GetAtomWithIdx(a).GetNeighbors():
+            w = b.GetIdx()
+            if (a, w) in ((u, v), (v, u)) or w in dist:
+                continue
+            dist[w] = dist[a] + 1
+            todo.append(w)
+    return dist[v] + 1 if v in dist else 0
+
+
+def _kekule(smiles: str) -> Chem.Mol:
+    m = Chem.MolFromSmiles(smiles)
+    Chem.Kekulize(m, clearAromaticFlags=True)
+    return m
+
+
+FILTERS = [
+    # (formula, options, predicate a structure must satisfy)
+    ("C5H8", Options(no_small_rings=True),
+     lambda s: not _kekule(s).HasSubstructMatch(Chem.MolFromSmarts("*1~*~*1"))
+     and not _kekule(s).HasSubstructMatch(Chem.MolFromSmarts("*1~*~*~*1"))),
+    ("C5H8", Options(no_cumulenes=True),
+     lambda s: not _kekule(s).HasSubstructMatch(Chem.MolFromSmarts("[#6](=*)=*"))),
+    ("C3H6N2O", Options(no_hetero_hetero=True),
+     lambda s: not _kekule(s).HasSubstructMatch(Chem.MolFromSmarts("[!#6]-[!#6]"))),
+    ("C6H8", Options(min_ring_triple=8),
+     lambda s: not any(b.GetBondTypeAsDouble() == 3 and _rings_through(_kekule(s), b)
+                       for b in _kekule(s).GetBonds())),
+    ("C6H10", Options(max_ring_size=5),
+     lambda s: all(_rings_through(_kekule(s), b) <= 5 for b in _kekule(s).GetBonds())),
+]
+
+
+@pytest.mark.parametrize("formula, options, keep", FILTERS)
+def test_filters_agree_with_reference(formula, options, keep) -> None:  # type: ignore[no-untyped-def]
+    got = list(generate(Spec(F(formula), options=options)))
+    assert len(got) == len(set(got))
+    want = {s for s in reference_isomers(F(formula).as_dict()) if keep(s)}
+    assert set(got) == want
+    assert 0 < len(want) < len(reference_isomers(F(formula).as_dict()))
+
+
+# Fixed atoms with H counts and neighbour-H sets, checked by brute force on the
+# reference set.  Isobutyl propanoate's proton groups (DESIGN.md worked example).
+ATOM_CASES = [
+    # isobutyl acetate-like groups: CH3 s, CH2 d, CH m, 2 x CH3 d, C, O, O
+    ("C6H12O2", [("C", 3, frozenset({0})), ("C", 2, frozenset({1})), ("C", 1, None),
+                 ("C", 3, frozenset({1})), ("C", 3, frozenset({1})),
+                 ("C", 0, None), ("O", 0, None), ("O", 0, None)]),
+    ("C4H8O2", [("C", 3, None), ("C", 3, None), ("C", 2, None), ("C", 0, None),
+                ("O", 0, None), ("O", 0, None)]),
+    ("C4H8O2", [("C", 3, frozenset({0})), ("C", 3, frozenset({2})), ("C", 2, frozenset({3})),
+                ("C", 0, None), ("O", 0, None), ("O", 0, None)]),
+    ("C5H10O", [("C", 3, frozenset({2})), ("C", 3, frozenset({2, 1})), ("C", 2, None),
+                ("C", 2, None), ("C", 0, None), ("O", 0, None)]),
+    ("C4H6O", [("C", 1, None), ("C", 1, None), ("C", 1, None), ("C", 3, None), ("O", 0, None)]),
+]
+
+
+@pytest.mark.parametrize("formula, atoms", ATOM_CASES)
+def test_atom_specs_agree_with_reference(formula: str, atoms: list) -> None:  # type: ignore[type-arg]
+    spec = Spec(F(formula), atoms=tuple(AtomSpec(el, h, nh) for el, h, nh in atoms))
+    got = list(generate(spec))
+    assert len(got) == len(set(got))
+    want = {s for s in reference_isomers(F(formula).as_dict()) if satisfies_atoms(s, atoms)}
+    assert set(got) == want
+    assert want
+
+
+# DESIGN.md worked example (isobutyl propanoate, values from memory): the
+# proton groups and n+1 neighbour counts leave a handful of joinings, among
+# them isobutyl propanoate and ethyl 3-methylbutanoate.
+ISOBUTYL_PROPANOATE = (
+    AtomSpec("C", 2, frozenset({1})),  # 3.87 d 2H
+    AtomSpec("C", 2, frozenset({3})),  # 2.33 q 2H
+    AtomSpec("C", 1),  # 1.92 m 1H
+    AtomSpec("C", 3, frozenset({2})),  # 1.14 t 3H
+    AtomSpec("C", 3, frozenset({1})),  # 0.93 d 6H
+    AtomSpec("C", 3, frozenset({1})),
+    AtomSpec("C", 0),
+    AtomSpec("O", 0),
+    AtomSpec("O", 0),
+)
+
+
+def test_design_worked_example() -> None:
+    got = list(generate(Spec(F("C7H14O2"), atoms=ISOBUTYL_PROPANOATE)))
+    assert len(got) == len(set(got)) and len(got) <= 10
+    assert "CCC(=O)OCC(C)C" in got and "CCOC(=O)CC(C)C" in got
+    for s in got:
+        assert satisfies_atoms(s, [(a.element, a.h_count, a.neighbour_h) for a in ISOBUTYL_PROPANOATE])
+
+
+def test_constraints_prune_during_construction() -> None:
+    free, fixed = Stats(), Stats()
+    f = F("C7H14O2")
+    count(Spec(f), stats=free)
+    count(Spec(f, atoms=ISOBUTYL_PROPANOATE), stats=fixed)
+    assert fixed.visited * 5 < free.visited
+    assert 0 < fixed.emitted < free.emitted
+
+
+def test_parts_are_disjoint_and_complete() -> None:
+    spec = Spec(F("C6H8O"))
+    whole = list(generate(spec))
+    parts = [list(generate(spec, part=(i, 5))) for i in range(5)]
+    joined = [s for p in parts for s in p]
+    assert joined == whole  # contiguous blocks: same order as an unsplit run
+    assert count(spec, workers=2) == len(whole)
+
+
+def test_limits_stop_and_say_so() -> None:
+    stats = Stats()
+    got: list[str] = []
+    with pytest.raises(LimitReached):
+        for s in generate(Spec(F("C7H8")), limits=Limits(max_structures=10), stats=stats):
+            got.append(s)
+    assert len(got) == 10 and stats.stopped_by == "max_structures"
+    st2 = Stats()
+    assert count(Spec(F("C7H8")), limits=Limits(max_structures=10), stats=st2) == 10
+    assert st2.stopped_by == "max_structures"
+
+
+def test_output_is_deterministic() -> None:
+    assert list(generate(Spec(F("C5H8O")))) == list(generate(Spec(F("C5H8O"))))
+
+
+# Options that widen the space: examples named in common practice.
+@pytest.mark.parametrize(
+    "formula, options, member",
+    [
+        ("CH3NO2", Options(charge_separated=True), "C[N+](=O)[O-]"),  # nitromethane
+        ("C5H5NO", Options(charge_separated=True), "[O-][n+]1ccccc1"),  # pyridine N-oxide
+        ("C2H6OS", Options(hypervalent_s=True), "CS(C)=O"),  # DMSO
+        ("C2H6O2S", Options(hypervalent_s=True), "CS(C)(=O)=O"),  # dimethyl sulfone
+        ("C3H9O4P", Options(pentavalent_p=True), "COP(=O)(OC)OC"),  # trimethyl phosphate
+    ],
+)
+def test_options_widen_the_space(formula: str, options: Options, member: str) -> None:
+    plain = set(generate(Spec(F(formula))))
+    wide = list(generate(Spec(F(formula), options=options)))
+    assert len(wide) == len(set(wide))
+    assert plain < set(wide)
+    assert Chem.CanonSmiles(member) in wide and Chem.CanonSmiles(member) not in plain
+    for s in wide:
+        assert Chem.GetFormalCharge(Chem.MolFromSmiles(s)) == 0
+
+
+def test_bad_inputs_raise_input_error() -> None:
+    with pytest.raises(InputError, match="SMARTS"):
+        list(generate(Spec(F("C2H6O"), forbid=("[C",))))
+    with pytest.raises(InputError, match="add up"):
+        list(generate(Spec(F("C2H6O"), atoms=(AtomSpec("C", 3),))))
+    with pytest.raises(InputError, match="part"):
+        list(generate(Spec(F("C2H6O")), part=(3, 2)))

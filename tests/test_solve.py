@@ -1,0 +1,108 @@
+"""solve / explain end to end: formula + peak list -> ranked constitutions.
+
+Peak lists are literature values (source beside each); the expected answers
+are the compounds those spectra belong to.
+"""
+
+import json
+
+import pytest
+
+from elucidate.errors import InputError
+from elucidate.parse import load_problem
+from elucidate.solve import explain, solve
+
+# Ethyl acetate, CDCl3 (Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512).
+EA_H1 = "4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)"
+
+
+@pytest.fixture(scope="module")
+def ethyl_acetate():
+    return solve(load_problem(formula="C4H8O2", h1=EA_H1))
+
+
+def test_ethyl_acetate_first_and_complete(ethyl_acetate):
+    r = ethyl_acetate
+    assert r.candidates[0].smiles == "CCOC(C)=O"
+    assert r.candidates[0].verdict == "consistent"
+    assert r.complete and r.relaxed == ()
+    # methyl propanoate passes the hard rules (same n+1 pattern) but fits worse
+    smiles = [c.smiles for c in r.candidates]
+    assert "CCC(=O)OC" in smiles
+    assert r.candidates[smiles.index("CCC(=O)OC")].verdict == "poor fit"
+
+
+def test_json_shape_and_determinism(ethyl_acetate):
+    doc = ethyl_acetate.to_json()
+    for key in ("formula", "dou", "complete", "relaxed", "counts", "candidates", "rejected"):
+        assert key in doc
+    c = doc["candidates"][0]
+    assert {"rank", "smiles", "score", "assignments", "notes"} <= set(c)
+    assert [c["rank"] for c in doc["candidates"]] == list(range(1, len(doc["candidates"]) + 1))
+    again = solve(load_problem(formula="C4H8O2", h1=EA_H1)).to_json()
+    assert json.dumps(doc, sort_keys=True) == json.dumps(again, sort_keys=True)
+
+
+def test_scores_sorted_ties_by_smiles(ethyl_acetate):
+    keys = [(c.score, c.smiles) for c in ethyl_acetate.candidates]
+    assert keys == sorted(keys)
+
+
+def test_explain_methyl_propanoate():
+    e = explain(load_problem(formula="C4H8O2", h1=EA_H1), "COC(=O)CC")
+    assert e.smiles == "CCC(=O)OC"
+    assert e.verdict == "poor fit"
+    assert e.rank is not None and e.rank > 1
+    assert any("4.12 ppm" in r for r in e.reasons)
+
+
+def test_explain_rejected_structure():
+    # 2-methylpropanoic acid: a 6H doublet that the data do not show
+    e = explain(load_problem(formula="C4H8O2", h1=EA_H1), "CC(C)C(=O)O")
+    assert e.verdict == "rejected" and e.rank is None
+    assert any("6 equivalent H" in r for r in e.reasons)
+
+
+def test_explain_wrong_formula():
+    e = explain(load_problem(formula="C4H8O2", h1=EA_H1), "CCO")
+    assert e.verdict == "rejected"
+    assert "C2H6O" in e.reasons[0]
+
+
+def test_explain_bad_smiles():
+    with pytest.raises(InputError, match="does not parse"):
+        explain(load_problem(formula="C4H8O2", h1=EA_H1), "C1CC")
+
+
+def test_limit_makes_result_incomplete():
+    r = solve(load_problem(formula="C4H8O2", h1=EA_H1), max_structures=1)
+    assert not r.complete and r.stopped_by
+    assert any("INCOMPLETE" in w for w in r.warnings)
+
+
+def test_relaxes_when_multiplicity_misreported():
+    # Ethyl acetate with the quartet misreported as a triplet: no structure
+    # obeys the n+1 rules, so they are relaxed, and the relaxation is listed.
+    h1 = "4.12 (t, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)"
+    r = solve(load_problem(formula="C4H8O2", h1=h1), top=5)
+    assert r.relaxed
+    assert "CCOC(C)=O" in [c.smiles for c in r.candidates]
+
+
+def test_isobutyl_propanoate_worked_example():
+    # DESIGN.md worked example (values from memory): the isobutyl ester wins,
+    # ethyl 3-methylbutanoate obeys the same rules and comes behind.
+    h1 = "3.87 (d, J = 6.7 Hz, 2H), 2.33 (q, J = 7.6 Hz, 2H), 1.92 (m, 1H), 1.14 (t, J = 7.6 Hz, 3H), 0.93 (d, J = 6.7 Hz, 6H)"
+    r = solve(load_problem(formula="C7H14O2", h1=h1))
+    smiles = [c.smiles for c in r.candidates]
+    assert smiles[0] == "CCC(=O)OCC(C)C"
+    assert "CCOC(=O)CC(C)C" in smiles[1:]
+    assert r.complete
+
+
+def test_validation():
+    p = load_problem(formula="C4H8O2", h1=EA_H1)
+    with pytest.raises(InputError, match="--top"):
+        solve(p, top=0)
+    with pytest.raises(InputError, match="--time-limit"):
+        solve(p, time_limit_s=0)

@@ -40,7 +40,7 @@ def test_solve_limit_is_prominent_and_exits_zero():
 def test_explain_text_and_json():
     result = runner.invoke(app, ["explain", "CCC(=O)OC", *EA])
     assert result.exit_code == 0
-    assert "Verdict      poor fit" in result.stdout
+    assert "CCC(=O)OC: poor fit" in result.stdout
     assert "4.12 ppm" in result.stdout
     result = runner.invoke(app, ["explain", "CCC(=O)OC", *EA, "--json"])
     doc = json.loads(result.stdout)

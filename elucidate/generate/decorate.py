@@ -136,8 +136,13 @@ def decorate(
     filters: Filters,
     visit: list[int],
     colour_hook: Callable[[tuple[int, ...]], None] | None = None,
-) -> Iterator[Structure]:
+    counting: bool = False,
+) -> Iterator[tuple[tuple[Label, ...], list[tuple[int, ...]]]]:
     """Every structure on this skeleton, one per orbit, Kekulé partners merged.
+
+    Yields, per colouring, the vertex labels and the list of extra-bond-order
+    vectors (bond order - 1 per edge, edges in ``sk.edges`` order); with
+    ``counting``, the number of them instead of the list.
 
     Parameters
     ----------
@@ -206,18 +211,34 @@ def decorate(
                         return False
         return True
 
-    def colourings(t: int) -> Iterator[tuple[int, ...]]:
-        if t == n:
-            yield tuple(colour)
-            return
+    reps: list[tuple[int, ...]] = []
+    check = need_nh or charge_sep
+    nvis = 0
+
+    def colourings(t: int) -> None:
+        nonlocal nvis
         for i in cands[t]:
             if counts[i]:
-                visit[0] += 1
-                counts[i] -= 1
+                nvis += 1
                 colour[t] = i
-                if colour_ok(t):
-                    yield from colourings(t + 1)
-                counts[i] += 1
+                if check and not colour_ok(t):
+                    continue
+                if t + 1 == n:
+                    c = tuple(colour)
+                    if gperm and any(p(c) < c for p in gperm):
+                        continue
+                    if need_nh and not _nh_matching(c, labels, nbrs, carbon_h):
+                        continue
+                    reps.append(c)
+                else:
+                    counts[i] -= 1
+                    colourings(t + 1)
+                    counts[i] += 1
+
+    colourings(0)
+    visit[0] += nvis
+    if not reps:
+        return
 
     # bond-order search data
     inc_last = [-1] * n
@@ -235,40 +256,132 @@ def decorate(
         small_ring = [0 < r < filters.min_ring_triple for r in sk.edge_smallest_ring]
     edge_index = {e: j for j, e in enumerate(edges)}
 
-    for c in colourings(0):
-        if any(p(c) < c for p in gperm):
+    # one bond-order search per skeleton, inside the envelope of all colourings
+    if len(reps) == 1:
+        c0 = reps[0]
+        lo_env = [max(0, labels[c0[v]].bs_lo - deg[v]) for v in range(n)]
+        hi_env = [labels[c0[v]].bs_hi - deg[v] for v in range(n)]
+    else:
+        seen_at = [0] * n  # bitmask of label indices seen per vertex
+        for c in reps:
+            for v in range(n):
+                seen_at[v] |= 1 << c[v]
+        lo_env = []
+        hi_env = []
+        for v in range(n):
+            idx = [i for i in range(nl) if seen_at[v] >> i & 1]
+            lo_env.append(min(max(0, labels[i].bs_lo - deg[v]) for i in idx))
+            hi_env.append(max(labels[i].bs_hi - deg[v] for i in idx))
+    if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
+        return
+    xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+    if not xs:
+        return
+    exact = all(lab.bs_lo == lab.bs_hi for lab in labels)
+    index: dict[tuple[int, ...], list[int]] | None = None
+    if exact:
+        index = {}
+        for k, vsum in enumerate(vs):
+            index.setdefault(vsum, []).append(k)
+    lohi = [[(lab.bs_lo - deg[v], lab.bs_hi - deg[v]) for v in range(n)] for lab in labels]
+    nohet = filters.no_hetero_hetero
+    nocum = filters.no_cumulenes
+    # solutions that may have a Kekulé partner (independent of the colouring)
+    # (an alternating cycle needs a cycle: trees never qualify)
+    ring_idx = list(range(m)) if m >= n else []
+    flagged: set[int] = set()
+    if ring_idx:
+        for k, x in enumerate(xs):
+            if 1 in x and _may_have_partner(sk, x, ring_idx):
+                flagged.add(k)
+    all_idx = range(len(xs))
+    eperm_cache: dict[int, object] = {}
+    gfull = group[1:]
+    for c in reps:
+        if index is not None:
+            cand = index.get(tuple(max(0, lohi[c[v]][v][0]) for v in range(n)), [])
+        else:
+            narrow = []
+            for v in range(n):
+                lv, hv = lohi[c[v]][v]
+                if lv > lo_env[v] or hv < hi_env[v]:
+                    narrow.append((v, lv, hv))
+            if not narrow:
+                cand = all_idx  # type: ignore[assignment]
+            elif len(narrow) == 1:
+                v, lv, hv = narrow[0]
+                cand = [k for k, vsum in enumerate(vs) if lv <= vsum[v] <= hv]
+            else:
+                cand = [
+                    k for k, vsum in enumerate(vs)
+                    if all(lv <= vsum[v] <= hv for v, lv, hv in narrow)
+                ]
+        if not cand:
             continue
-        if need_nh and not _nh_matching(c, labels, nbrs, carbon_h):
-            continue
-        stab = [g for g in group[1:] if all(c[g[i]] == c[i] for i in range(n))]
-        eperm = [
-            itemgetter(*[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges])
-            for g in stab
-        ] if m > 1 else []
         if colour_hook is not None:
             colour_hook(c)
         vlabels = tuple(labels[i] for i in c)
-        lo = [max(0, lab.bs_lo - deg[v]) for v, lab in enumerate(vlabels)]
-        hi = [lab.bs_hi - deg[v] for v, lab in enumerate(vlabels)]
-        if sum(lo) > 2 * extra_total or sum(hi) < 2 * extra_total:
+        eperm = []
+        if gperm:
+            for gi, p in enumerate(gperm):
+                if p(c) == c:
+                    ep = eperm_cache.get(gi)
+                    if ep is None:
+                        g = gfull[gi]
+                        ep = eperm_cache[gi] = itemgetter(
+                            *[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges]
+                        ) if m > 1 else None
+                    if ep is not None:
+                        eperm.append(ep)
+        simple = not (nohet or nocum or eperm)
+        if simple and counting:
+            k = len(cand)
+            fl = [i for i in cand if i in flagged] if flagged else []
+            for i in fl:
+                x = xs[i]
+                st = Structure(vlabels, edges, tuple(o + 1 for o in x))
+                if not _kekule_canonical(st, x, eperm, filters):
+                    k -= 1
+            if k:
+                yield vlabels, k  # type: ignore[misc]
             continue
-        het = [lab.hetero for lab in vlabels]
-        isc = [lab.symbol == "C" for lab in vlabels]
-        chg = [lab.charge for lab in vlabels]
-        for x in _bond_orders(
-            m, eu, ev, closes, lo, hi, extra_total, het, isc, chg, small_ring, filters, visit
-        ):
-            if eperm and any(p(x) < x for p in eperm):
+        hh: list[int] = []
+        if nohet:
+            hh = [
+                j
+                for j, (u, v) in enumerate(edges)
+                if vlabels[u].hetero and vlabels[v].hetero and not (vlabels[u].charge and vlabels[v].charge)
+            ]
+        carbons = [v for v in range(n) if vlabels[v].symbol == "C"] if nocum else []
+        out = []
+        for i in cand:
+            x = xs[i]
+            if hh and not all(x[j] for j in hh):
                 continue
-            orders = tuple(o + 1 for o in x)
-            st = Structure(vlabels, edges, orders)
-            if 1 in x and _may_have_partner(sk, x):
+            if carbons and _cumulated(x, edges, carbons):
+                continue
+            if eperm and any(p(x) < x for p in eperm):  # type: ignore[operator]
+                continue
+            if i in flagged:
+                st = Structure(vlabels, edges, tuple(o + 1 for o in x))
                 if not _kekule_canonical(st, x, eperm, filters):
                     continue
-            yield st
+            out.append(x)
+        if out:
+            yield vlabels, (len(out) if counting else out)  # type: ignore[misc]
 
 
-def _bond_orders(
+def _cumulated(x: tuple[int, ...], edges: tuple[tuple[int, int], ...], carbons: list[int]) -> bool:
+    dbl: dict[int, int] = {}
+    for j, o in enumerate(x):
+        if o == 1:
+            u, v = edges[j]
+            dbl[u] = dbl.get(u, 0) + 1
+            dbl[v] = dbl.get(v, 0) + 1
+    return any(dbl.get(v, 0) > 1 for v in carbons)
+
+
+def _solutions(
     m: int,
     eu: list[int],
     ev: list[int],
@@ -276,61 +389,54 @@ def _bond_orders(
     lo: list[int],
     hi: list[int],
     total: int,
-    het: list[bool],
-    isc: list[bool],
-    chg: list[int],
     small_ring: list[bool],
-    filters: Filters,
     visit: list[int],
-) -> Iterator[tuple[int, ...]]:
-    """Extra bond order (0, 1, 2) per edge; sums per vertex within [lo, hi]."""
+) -> tuple[list[tuple[int, ...]], list[tuple[int, ...]]]:
+    """Every extra-bond-order vector (0, 1, 2 per edge) with per-vertex sums
+    within [lo, hi] and ``total`` in all; with the per-vertex sums."""
+    xs: list[tuple[int, ...]] = []
+    vs: list[tuple[int, ...]] = []
     cur = [0] * len(lo)
-    dbl = [0] * len(lo)
     x = [0] * m
-    nohet = filters.no_hetero_hetero
-    nocum = filters.no_cumulenes
     if m == 0:
         if total == 0 and all(lv <= 0 for lv in lo):
-            yield ()
-        return
+            xs.append(())
+            vs.append(tuple(cur))
+        return xs, vs
+    count = 0
 
-    def rec(j: int, left: int) -> Iterator[tuple[int, ...]]:
+    def rec(j: int, left: int) -> None:
+        nonlocal count
         if j == m:
             if left == 0:
-                yield tuple(x)
+                xs.append(tuple(x))
+                vs.append(tuple(cur))
+            return
+        if left > 2 * (m - j):
             return
         u = eu[j]
         v = ev[j]
         top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
-        if left > 2 * (m - j):
-            return
+        cl = closes[j]
         for o in range(top + 1):
-            visit[0] += 1
-            if o == 0 and nohet and het[u] and het[v] and not (chg[u] and chg[v]):
-                continue
+            count += 1
             if o == 2 and small_ring[j]:
                 continue
             cur[u] += o
             cur[v] += o
-            if o == 1:
-                dbl[u] += 1
-                dbl[v] += 1
-            ok = True
-            for w in closes[j]:
-                if cur[w] < lo[w] or (nocum and isc[w] and dbl[w] > 1):
-                    ok = False
+            for w in cl:
+                if cur[w] < lo[w]:
                     break
-            if ok:
+            else:
                 x[j] = o
-                yield from rec(j + 1, left - o)
+                rec(j + 1, left - o)
             cur[u] -= o
             cur[v] -= o
-            if o == 1:
-                dbl[u] -= 1
-                dbl[v] -= 1
         x[j] = 0
 
-    yield from rec(0, total)
+    rec(0, total)
+    visit[0] += count
+    return xs, vs
 
 
 def _nh_matching(
@@ -367,17 +473,20 @@ def _bipartite(sums: list[int], sets: tuple[frozenset[int] | None, ...]) -> bool
     return all(try_v(i, set()) for i in range(len(sums)))
 
 
-def _may_have_partner(sk: Skeleton, x: tuple[int, ...]) -> bool:
+def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> bool:
     """Necessary condition for a Kekulé partner: an alternating cycle of
     ring double bonds and ring single bonds may exist."""
-    ring = sk.ring_edges
+    nd = 0
+    for j in ring_idx:
+        if x[j] == 1:
+            nd += 1
+    if nd < 2:
+        return False
     edges = sk.edges
     dmask = [0] * sk.n
     smask = [0] * sk.n
-    nd = 0
-    for j, (u, v) in enumerate(edges):
-        if not ring[j]:
-            continue
+    for j in ring_idx:
+        u, v = edges[j]
         if x[j] == 1:
             dmask[u] |= 1 << v
             dmask[v] |= 1 << u
@@ -385,8 +494,6 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...]) -> bool:
         elif x[j] == 0:
             smask[u] |= 1 << v
             smask[v] |= 1 << u
-    if nd < 2:
-        return False
     alive = 0
     for v in range(sk.n):
         if dmask[v]:

@@ -62,19 +62,21 @@ class Skeleton:
         """All automorphisms as vertex permutations (identity included)."""
         import pynauty
 
-        gens = pynauty.autgrp(_nauty_graph(self.n, self.adj))[0]
+        if self.n == 1:
+            return [(0,)]
+        gens = _nw().graph_autgrp(_nauty_graph(self.n, self.adj))[0]
+        if not gens:
+            return [tuple(range(self.n))]
         return _closure(self.n, [tuple(g) for g in gens])
 
     @functools.cached_property
     def ring_edges(self) -> tuple[bool, ...]:
         """Per edge: does it lie on a cycle (is it not a bridge)?"""
-        out = []
-        for u, v in self.edges:
-            adj = list(self.adj)
-            adj[u] &= ~(1 << v)
-            adj[v] &= ~(1 << u)
-            out.append(_reach(adj, u) >> v & 1 == 1)
-        return tuple(out)
+        m = len(self.edges)
+        if m == self.n - 1:
+            return (False,) * m
+        bridges = _bridges(self.n, self.adj)
+        return tuple((u, v) not in bridges for u, v in self.edges)
 
     @functools.cached_property
     def edge_smallest_ring(self) -> tuple[int, ...]:
@@ -90,10 +92,33 @@ class Skeleton:
 
 
 def _nauty_graph(n: int, adj: tuple[int, ...] | list[int]):  # type: ignore[no-untyped-def]
+    """A pynauty Graph built without its per-call input checks (our adjacency
+    lists are valid by construction); same attributes as ``pynauty.Graph``."""
     import pynauty
 
-    ad = {v: [w for w in range(v + 1, n) if adj[v] >> w & 1] for v in range(n)}
-    return pynauty.Graph(n, adjacency_dict=ad)
+    g = pynauty.Graph.__new__(pynauty.Graph)
+    g.number_of_vertices = n
+    g.directed = False
+    ad = {}
+    for v in range(n):
+        m = adj[v] >> (v + 1)
+        w = v + 1
+        lst = []
+        while m:
+            if m & 1:
+                lst.append(w)
+            m >>= 1
+            w += 1
+        ad[v] = lst
+    g._adjacency_dict = ad
+    g._vertex_coloring = []
+    return g
+
+
+def _nw():  # type: ignore[no-untyped-def]
+    from pynauty import nautywrap
+
+    return nautywrap
 
 
 def _closure(n: int, gens: list[tuple[int, ...]]) -> list[tuple[int, ...]]:
@@ -104,11 +129,41 @@ def _closure(n: int, gens: list[tuple[int, ...]]) -> list[tuple[int, ...]]:
     while todo:
         p = todo.pop()
         for g in gens:
-            q = tuple(g[i] for i in p)
+            q = tuple(map(g.__getitem__, p))
             if q not in seen:
                 seen.add(q)
                 out.append(q)
                 todo.append(q)
+    return out
+
+
+def _bridges(n: int, adj: tuple[int, ...]) -> set[tuple[int, int]]:
+    """Bridges ``(u, v)``, ``u < v``, by Tarjan's low-link depth-first search."""
+    disc = [-1] * n
+    low = [0] * n
+    out: set[tuple[int, int]] = set()
+    t = 0
+    disc[0] = low[0] = 0
+    stack = [(0, -1, [w for w in range(n) if adj[0] >> w & 1])]
+    while stack:
+        v, parent, todo = stack[-1]
+        if todo:
+            w = todo.pop()
+            if w == parent:
+                continue
+            if disc[w] < 0:
+                t += 1
+                disc[w] = low[w] = t
+                stack.append((w, v, [x for x in range(n) if adj[w] >> x & 1]))
+            elif disc[w] < low[v]:
+                low[v] = disc[w]
+        else:
+            stack.pop()
+            if parent >= 0:
+                if low[v] < low[parent]:
+                    low[parent] = low[v]
+                if low[v] > disc[parent]:
+                    out.add((min(v, parent), max(v, parent)))
     return out
 
 
@@ -217,8 +272,7 @@ def _skeletons(
     girth5: bool,
     on_visit: Callable[[int], None] | None,
 ) -> list[tuple[int, ...]]:
-    import pynauty
-
+    nw = _nw()
     dmax = caps[0] if caps else 0
     if n == 1:
         return [(0,)]
@@ -283,13 +337,13 @@ def _skeletons(
                         continue
                     g = _nauty_graph(k + 1, new)
                     if ties:
-                        lab = pynauty.canon_label(g)
-                        orbits = pynauty.autgrp(g)[3]
+                        lab = nw.graph_canonlab(g)
+                        orbits = nw.graph_autgrp(g)[3]
                         pos = {v: i for i, v in enumerate(lab)}
                         w = max([*ties, k], key=pos.__getitem__)
                         if orbits[w] != orbits[k]:
                             continue
-                    cert = pynauty.certificate(g)
+                    cert = nw.graph_cert(g)
                     if cert in sib:
                         continue
                     sib.add(cert)

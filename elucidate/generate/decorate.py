@@ -164,7 +164,12 @@ def decorate(
     nl = len(labels)
     # candidate labels per vertex
     cands = [
-        [i for i in range(nl) if labels[i].bs_hi >= deg[v] and labels[i].bs_lo <= 3 * deg[v]]
+        [
+            i
+            for i in range(nl)
+            if (labels[i].degree == deg[v])
+            or (labels[i].degree < 0 and labels[i].bs_hi >= deg[v] and labels[i].bs_lo <= 3 * deg[v])
+        ]
         for v in range(n)
     ]
     nbrs = [[w for w in range(n) if sk.adj[v] >> w & 1] for v in range(n)]
@@ -212,6 +217,7 @@ def decorate(
         return True
 
     reps: list[tuple[int, ...]] = []
+    units = any(lab.is_unit for lab in labels)
     check = need_nh or charge_sep
     nvis = 0
 
@@ -228,6 +234,8 @@ def decorate(
                     if gperm and any(p(c) < c for p in gperm):
                         continue
                     if need_nh and not _nh_matching(c, labels, nbrs, carbon_h):
+                        continue
+                    if units and not gadget_ok(c, labels, nbrs):
                         continue
                     reps.append(c)
                 else:
@@ -288,7 +296,7 @@ def decorate(
     nocum = filters.no_cumulenes
     # solutions that may have a Kekulé partner (independent of the colouring)
     # (an alternating cycle needs a cycle: trees never qualify)
-    ring_idx = list(range(m)) if m >= n else []
+    ring_idx = list(range(m)) if m >= n and not units else []
     flagged: set[int] = set()
     if ring_idx:
         for k, x in enumerate(xs):
@@ -369,6 +377,33 @@ def decorate(
             out.append(x)
         if out:
             yield vlabels, (len(out) if counting else out)  # type: ignore[misc]
+
+
+def gadget_ok(c: tuple[int, ...], labels: tuple[Label, ...], nbrs: list[list[int]]) -> bool:
+    """Do the gadget vertices of a colouring form whole fragments?"""
+    for v, li in enumerate(c):
+        lab = labels[li]
+        if not lab.is_unit:
+            continue
+        if lab.port < 0:  # centre: neighbours are its own ports, right classes
+            for w in nbrs[v]:
+                lw = labels[c[w]]
+                if lw.unit != lab.unit or lw.port < 0 or lw.degree != 2:
+                    return False
+        elif lab.degree == 2:  # port of a multi-port fragment
+            centres = [w for w in nbrs[v] if labels[c[w]].is_unit and labels[c[w]].port < 0]
+            if len(centres) != 1 or labels[c[centres[0]]].unit != lab.unit:
+                return False
+            other = [w for w in nbrs[v] if w != centres[0]][0]
+            lo = labels[c[other]]
+            if lo.is_unit and lo.unit == lab.unit and lo.degree == 2 and centres[0] in nbrs[other]:
+                return False  # both ends in one fragment
+        else:  # one-port fragment: its neighbour is not a centre
+            w = nbrs[v][0]
+            if labels[c[w]].is_unit and labels[c[w]].port < 0:
+                return False
+    return True
+
 
 
 def _cumulated(x: tuple[int, ...], edges: tuple[tuple[int, int], ...], carbons: list[int]) -> bool:

@@ -15,6 +15,7 @@ for graphs that have an alternating cycle at all).
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from operator import itemgetter
 from typing import Callable, Iterator
@@ -112,6 +113,7 @@ class Structure:
     edges: tuple[tuple[int, int], ...]
     orders: tuple[int, ...]
     mol: object = None  # RDKit Mol if one was built on the way
+    skeleton: Skeleton | None = None  # set when vertex order = skeleton order
 
     def hs(self) -> list[int]:
         bs = [0] * len(self.labels)
@@ -545,6 +547,79 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> 
                 alive &= ~b
                 changed = True
     return alive != 0
+
+
+_BOND_SYMBOL = ("", "", "=", "#")
+
+
+@functools.cache
+def _atom_token(symbol: str, h: int, charge: int) -> str:
+    hs = "" if h == 0 else ("H" if h == 1 else f"H{h}")
+    ch = "" if charge == 0 else ("+" if charge == 1 else "-" if charge == -1 else f"{charge:+d}")
+    return f"[{symbol}{hs}{ch}]"
+
+
+@functools.cache
+def _tokens(lab: Label) -> tuple[str, ...]:
+    return tuple(_atom_token(lab.symbol, h, lab.charge) for h in range(9))
+
+
+def structure_smiles(st: Structure) -> str:
+    """RDKit canonical SMILES (aromatic form) of a structure.
+
+    With a skeleton at hand, a Kekulé SMILES with every atom in brackets is
+    written from the skeleton's template and read back by RDKit without the
+    full sanitisation (property cache, ring perception, aromaticity only),
+    which costs about as much as RDKit's own writing step.
+    """
+    from rdkit import Chem
+
+    sk = st.skeleton
+    if sk is None or st.mol is not None:
+        return Chem.MolToSmiles(structure_mol(st))
+    fmt, getter = sk.smiles_writer
+    labels = st.labels
+    combined = [_tokens(lab)[h] for lab, h in zip(labels, st.hs())]
+    combined += [_BOND_SYMBOL[o] for o in st.orders]
+    vals = getter(combined)
+    m = Chem.MolFromSmiles(fmt % vals, sanitize=False)
+    m.UpdatePropertyCache(strict=False)
+    if len(st.orders) >= len(labels):
+        if _may_be_aromatic(st):
+            Chem.GetSymmSSSR(m)
+            Chem.SetAromaticity(m)
+        else:
+            Chem.FastFindRings(m)
+    return Chem.MolToSmiles(m)
+
+
+def _may_be_aromatic(st: Structure) -> bool:
+    """Necessary condition for RDKit to find an aromatic ring: a cycle through
+    atoms that are not saturated carbon/silicon (every atom of an aromatic ring
+    has a double bond or is a heteroatom that can give a lone pair)."""
+    n = len(st.labels)
+    unsat = [False] * n
+    for (u, v), o in zip(st.edges, st.orders):
+        if o > 1:
+            unsat[u] = unsat[v] = True
+    if not any(unsat) and all(lab.symbol in ("C", "Si") for lab in st.labels):
+        return False
+    ok = [unsat[i] or lab.symbol not in ("C", "Si") for i, lab in enumerate(st.labels)]
+    parent = list(range(n))
+
+    def find(a: int) -> int:
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for u, v in st.edges:
+        if ok[u] and ok[v]:
+            ru, rv = find(u), find(v)
+            if ru == rv:
+                return True
+            parent[ru] = rv
+    return False
 
 
 def structure_mol(st: Structure):  # type: ignore[no-untyped-def]

@@ -18,7 +18,15 @@ from itertools import product
 from typing import Iterator
 
 from elucidate.errors import InputError, LimitReached
-from elucidate.generate.decorate import Filters, Label, Problem, Structure, decorate, structure_mol
+from elucidate.generate.decorate import (
+    Filters,
+    Label,
+    Problem,
+    Structure,
+    decorate,
+    structure_mol,
+    structure_smiles,
+)
 from elucidate.generate.fragments import FragmentPlan, plan_fragments
 from elucidate.generate.skeletons import Skeleton, skeletons
 from elucidate.generate.spec import Limits, Spec, Stats
@@ -241,7 +249,7 @@ def _structures(
                     continue
                 stats.bond_graphs += len(xs)
                 for x in xs:
-                    st: Structure | None = Structure(vlabels, edges, tuple(v + 1 for v in x))
+                    st: Structure | None = Structure(vlabels, edges, tuple(v + 1 for v in x), None, sk)
                     if plan.units:
                         st = plan.expand(st, spec)  # type: ignore[arg-type]
                         if st is None:
@@ -316,7 +324,7 @@ def _generate(
     from rdkit import Chem
 
     for st in _structures(spec, part, stats, limits):
-        yield Chem.MolToSmiles(structure_mol(st))  # type: ignore[arg-type]
+        yield structure_smiles(st)  # type: ignore[arg-type]
     if stats.stopped_by:
         raise LimitReached(f"stopped by {stats.stopped_by.replace('_', ' ')} after {stats.emitted} structures")
 
@@ -389,7 +397,7 @@ def parts_smiles(args: tuple[Spec, Limits | None, tuple[int, int]]) -> tuple[lis
     from rdkit import Chem
 
     st = Stats()
-    out = [Chem.MolToSmiles(structure_mol(s)) for s in _structures(spec, part, st, limits)]
+    out = [structure_smiles(s) for s in _structures(spec, part, st, limits)]  # type: ignore[arg-type]
     return out, st
 
 

@@ -79,6 +79,80 @@ class Skeleton:
         return tuple((u, v) not in bridges for u, v in self.edges)
 
     @functools.cached_property
+    def smiles_template(self) -> tuple[str, tuple[int, ...]]:
+        """A SMILES writing plan for this skeleton: a ``%``-format string and
+        its slots (vertex v as ``v``, edge j as ``-1 - j``), so a decorated
+        skeleton becomes a (Kekulé, all-bracket) SMILES by one substitution."""
+        n = self.n
+        nbrs = [[w for w in range(n) if self.adj[v] >> w & 1] for v in range(n)]
+        eidx = {e: j for j, e in enumerate(self.edges)}
+        seen = [False] * n
+        children: list[list[int]] = [[] for _ in range(n)]
+        opens: list[list[tuple[int, int]]] = [[] for _ in range(n)]  # (edge, digit)
+        closes: list[list[int]] = [[] for _ in range(n)]  # digits
+        nring = 0
+
+        done: set[int] = set()
+
+        def dfs(v: int, parent: int) -> None:
+            nonlocal nring
+            seen[v] = True
+            for w in nbrs[v]:
+                if w == parent:
+                    continue
+                e = eidx[(min(v, w), max(v, w))]
+                if seen[w]:
+                    if e not in done:  # back edge: w is an ancestor of v
+                        done.add(e)
+                        nring += 1
+                        opens[w].append((e, nring))
+                        closes[v].append(nring)
+                    continue
+                children[v].append(w)
+                dfs(w, v)
+
+        dfs(0, -1)
+        fmt: list[str] = []
+        slots: list[int] = []
+
+        def digit(d: int) -> str:
+            return str(d) if d < 10 else f"%%{d}"
+
+        def write(v: int) -> None:
+            fmt.append("%s")
+            slots.append(v)
+            for e, d in opens[v]:
+                fmt.append("%s" + digit(d))
+                slots.append(-1 - e)
+            for d in closes[v]:
+                fmt.append(digit(d))
+            kids = children[v]
+            for i, w in enumerate(kids):
+                e = eidx[(min(v, w), max(v, w))]
+                if i < len(kids) - 1:
+                    fmt.append("(%s")
+                    slots.append(-1 - e)
+                    write(w)
+                    fmt.append(")")
+                else:
+                    fmt.append("%s")
+                    slots.append(-1 - e)
+                    write(w)
+
+        write(0)
+        return "".join(fmt), tuple(slots)
+
+    @functools.cached_property
+    def smiles_writer(self) -> tuple[str, Callable[[list[str]], tuple[str, ...]]]:
+        """The template with an itemgetter picking its values from a list of
+        atom tokens (vertex order) followed by bond symbols (edge order)."""
+        fmt, slots = self.smiles_template
+        idx = [i if i >= 0 else self.n + (-1 - i) for i in slots]
+        if len(idx) == 1:
+            return fmt, lambda vals: (vals[idx[0]],)
+        return fmt, itemgetter(*idx)
+
+    @functools.cached_property
     def edge_smallest_ring(self) -> tuple[int, ...]:
         """Per edge: size of the smallest ring through it (0 for a bridge)."""
         out = []

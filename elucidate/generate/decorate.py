@@ -654,7 +654,8 @@ def _kekule_canonical(
     from rdkit import Chem
 
     mol = structure_mol(st)
-    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic()]
+    # aromatic bonds that are not triple (RDKit also marks an aryne's C#C aromatic)
+    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic() and x[j] < 2]
     if len(arom) < 2:
         return True
     # doubles needed per atom inside the aromatic bond set

@@ -465,7 +465,7 @@ def _canonical_placement(
     from rdkit import Chem
 
     mol = structure_mol(st)
-    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic()]
+    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic() and st.orders[j] < 3]
     forms = [st.orders]
     if len(arom) >= 2:
         need: dict[int, int] = {}

@@ -120,6 +120,42 @@ def _root(
 # ---------------------------------------------------------------- read (parse)
 
 
+@app.command("read")
+@user_errors
+def read_command(
+    case: CaseArg = None,
+    formula: FormulaOpt = None,
+    h1: H1Opt = None,
+    c13: C13Opt = None,
+    solvent: SolventOpt = None,
+    field: FieldOpt = None,
+    require: RequireOpt = None,
+    forbid: ForbidOpt = None,
+    json_out: JsonOpt = False,
+) -> None:
+    """Read an unknown and show what was understood: formula, DoU, the 1H and
+    13C signals normalised, solvent, field, constraints and warnings."""
+    from elucidate.parse import load_problem
+    from elucidate.parse.readback import readback_json, readback_text
+
+    problem = load_problem(
+        case,
+        formula=formula,
+        h1=h1,
+        c13=c13,
+        solvent=solvent,
+        field_mhz=field,
+        require=tuple(require or ()),
+        forbid=tuple(forbid or ()),
+    )
+    for message in problem.warnings:
+        warn(message)
+    if json_out:
+        emit_json(readback_json(problem))
+    else:
+        typer.echo(readback_text(problem))
+
+
 # ------------------------------------------------------- isomers (generate)
 
 

@@ -218,6 +218,46 @@ def decorate(
                         return False
         return True
 
+    # bond-order search data
+    inc_last = [-1] * n
+    for j, (u, v) in enumerate(edges):
+        inc_last[u] = j
+        inc_last[v] = j
+    closes: list[list[int]] = [[] for _ in range(m)]
+    for v in range(n):
+        if inc_last[v] >= 0:
+            closes[inc_last[v]].append(v)
+    eu = [u for u, _ in edges]
+    ev = [v for _, v in edges]
+    small_ring = [False] * m
+    if filters.min_ring_triple:
+        small_ring = [0 < r < filters.min_ring_triple for r in sk.edge_smallest_ring]
+    edge_index = {e: j for j, e in enumerate(edges)}
+
+    # one bond-order search per skeleton, inside the envelope of all colourings
+    # exact bond-order sums (every atom's H fixed): solve bond orders first and
+    # let the colouring follow only prefixes of feasible per-vertex sums
+    exact = all(lab.bs_lo == lab.bs_hi for lab in labels)
+    prefixes: list[set[tuple[int, ...]]] = []
+    xs: list[tuple[int, ...]] = []
+    vs: list[tuple[int, ...]] = []
+    if exact:
+        if any(not cands[v] for v in range(n)):
+            return
+        lo_env = [min(labels[i].bs_lo - deg[v] for i in cands[v]) for v in range(n)]
+        hi_env = [max(labels[i].bs_hi - deg[v] for i in cands[v]) for v in range(n)]
+        lo_env = [max(0, x) for x in lo_env]
+        if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
+            return
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        if not xs:
+            return
+        prefixes = [set() for _ in range(n)]
+        for vsum in vs:
+            for t in range(n):
+                prefixes[t].add(vsum[: t + 1])
+    ext = [0] * n
+
     reps: list[tuple[int, ...]] = []
     units = any(lab.is_unit for lab in labels)
     check = need_nh or charge_sep
@@ -229,6 +269,10 @@ def decorate(
             if counts[i]:
                 nvis += 1
                 colour[t] = i
+                if exact:
+                    ext[t] = labels[i].bs_lo - deg[t]
+                    if tuple(ext[: t + 1]) not in prefixes[t]:
+                        continue
                 if check and not colour_ok(t):
                     continue
                 if t + 1 == n:
@@ -250,24 +294,9 @@ def decorate(
     if not reps:
         return
 
-    # bond-order search data
-    inc_last = [-1] * n
-    for j, (u, v) in enumerate(edges):
-        inc_last[u] = j
-        inc_last[v] = j
-    closes: list[list[int]] = [[] for _ in range(m)]
-    for v in range(n):
-        if inc_last[v] >= 0:
-            closes[inc_last[v]].append(v)
-    eu = [u for u, _ in edges]
-    ev = [v for _, v in edges]
-    small_ring = [False] * m
-    if filters.min_ring_triple:
-        small_ring = [0 < r < filters.min_ring_triple for r in sk.edge_smallest_ring]
-    edge_index = {e: j for j, e in enumerate(edges)}
-
-    # one bond-order search per skeleton, inside the envelope of all colourings
-    if len(reps) == 1:
+    if exact:
+        pass
+    elif len(reps) == 1:
         c0 = reps[0]
         lo_env = [max(0, labels[c0[v]].bs_lo - deg[v]) for v in range(n)]
         hi_env = [labels[c0[v]].bs_hi - deg[v] for v in range(n)]
@@ -282,12 +311,12 @@ def decorate(
             idx = [i for i in range(nl) if seen_at[v] >> i & 1]
             lo_env.append(min(max(0, labels[i].bs_lo - deg[v]) for i in idx))
             hi_env.append(max(labels[i].bs_hi - deg[v] for i in idx))
-    if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
-        return
-    xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
-    if not xs:
-        return
-    exact = all(lab.bs_lo == lab.bs_hi for lab in labels)
+    if not exact:
+        if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
+            return
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        if not xs:
+            return
     index: dict[tuple[int, ...], list[int]] | None = None
     if exact:
         index = {}

@@ -175,7 +175,8 @@ def _label_key(lab: Label) -> tuple:  # type: ignore[type-arg]
 def _skeleton_list(
     n: int, max_edges: int, caps: tuple[int, ...], girth5: bool, max_ring: int | None
 ) -> tuple[Skeleton, ...]:
-    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5)
+    leaves = caps.count(1) if n >= 3 else 0
+    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5, min_leaves=leaves)
     if max_ring is not None:
         sks = [
             s

@@ -303,6 +303,7 @@ def skeletons(
     min_edges: int = 0,
     girth5: bool = False,
     on_visit: Callable[[int], None] | None = None,
+    min_leaves: int = 0,
 ) -> list[Skeleton]:
     """All connected simple graphs on ``n`` vertices, one per isomorphism class.
 
@@ -320,6 +321,11 @@ def skeletons(
         Smallest number of edges of a final graph.
     girth5 : bool
         Leave out graphs with a 3- or 4-membered cycle.
+    min_leaves : int
+        Atoms that can only be leaves (one bond-order unit): a final graph
+        needs at least this many vertices of degree 1.  Along the canonical
+        construction path a graph on k vertices has at least
+        ``min_leaves - (n - k)`` of them, which prunes early.
     on_visit : callable, optional
         Called with the number of candidate graphs examined per parent (for
         the statistics of partial structures visited).
@@ -331,7 +337,10 @@ def skeletons(
     """
     if n < 1:
         return []
-    return [Skeleton(n, adj) for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit)]
+    return [
+        Skeleton(n, adj)
+        for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves)
+    ]
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:
@@ -345,6 +354,7 @@ def _skeletons(
     min_edges: int,
     girth5: bool,
     on_visit: Callable[[int], None] | None,
+    min_leaves: int = 0,
 ) -> list[tuple[int, ...]]:
     nw = _nw()
     dmax = caps[0] if caps else 0
@@ -384,6 +394,8 @@ def _skeletons(
                     new.append(sm)
                     nd = [a.bit_count() for a in new]
                     if not _fits(nd, caps):
+                        continue
+                    if min_leaves and k + 1 >= 3 and nd.count(1) < min_leaves - rem_after:
                         continue
                     inv_k = (s, sum(nd[v] for v in subset))
                     ok = True

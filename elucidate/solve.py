@@ -100,6 +100,7 @@ class _Run:
     problem: Problem
     deadline: float | None
     max_structures: int | None
+    top: int = 10
     weights: Weights = field(default_factory=Weights)
     entries: dict[str, _Entry] = field(default_factory=dict)
     rejected: dict[str, tuple[str, str]] = field(default_factory=dict)  # smiles -> (category, sentence)
@@ -157,7 +158,7 @@ def solve(
     ('CCOC(C)=O', True)
     """
     _validate(problem, top, time_limit_s, max_structures)
-    run, ranked = _solve(problem, time_limit_s, max_structures)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top)
     return _result(run, ranked, top)
 
 
@@ -225,9 +226,11 @@ def _canonical(smiles: str) -> str:
 # ------------------------------------------------------------------ search
 
 
-def _solve(problem: Problem, time_limit_s: float | None, max_structures: int | None) -> tuple[_Run, list[_Entry]]:
+def _solve(
+    problem: Problem, time_limit_s: float | None, max_structures: int | None, top: int = 10
+) -> tuple[_Run, list[_Entry]]:
     start = time.monotonic()
-    run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures)
+    run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures, top)
     run.warnings.extend(problem.warnings)
     matches = match_fragments(problem)
     hard = [m for m in matches if m.rule.strength == "hard"]
@@ -538,9 +541,9 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
         return
     done = sorted((e.fit.cost + e.soft_cost for e in run.entries.values() if e.fit is not None and e.fit.feasible))
     for k, entry in enumerate(pending):
-        kth = done[9] if len(done) >= 10 else math.inf
+        kth = done[run.top - 1] if len(done) >= run.top else math.inf
         if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
-            break  # bound-only: cannot enter the top ten
+            break  # bound-only: cannot enter the top `top`
         fit = assign(run.problem, entry.prediction, weights=run.weights)
         run.full_models += 1
         if not fit.feasible:
@@ -790,7 +793,7 @@ def _explain(problem: Problem, smiles: str, top: int, time_limit_s: float | None
         fit = assign(problem, prediction)
         if not fit.feasible:
             reasons = list(fit.reasons) + reasons
-    run, ranked = _solve(problem, time_limit_s, max_structures)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top)
     rank = next((i + 1 for i, e in enumerate(ranked) if e.smiles == smiles), None)
     total = len(ranked)
     if fit is None or not fit.feasible:

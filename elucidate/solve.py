@@ -100,6 +100,7 @@ class _Run:
     problem: Problem
     deadline: float | None
     max_structures: int | None
+    top: int = 10
     weights: Weights = field(default_factory=Weights)
     entries: dict[str, _Entry] = field(default_factory=dict)
     rejected: dict[str, tuple[str, str]] = field(default_factory=dict)  # smiles -> (category, sentence)
@@ -162,7 +163,7 @@ def solve(
     ('CCOC(C)=O', True)
     """
     _validate(problem, top, time_limit_s, max_structures)
-    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress)
     return _result(run, ranked, top)
 
 
@@ -232,10 +233,14 @@ def _canonical(smiles: str) -> str:
 
 
 def _solve(
-    problem: Problem, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+    problem: Problem,
+    time_limit_s: float | None,
+    max_structures: int | None,
+    top: int = 10,
+    progress: Any = None,
 ) -> tuple[_Run, list[_Entry]]:
     start = time.monotonic()
-    run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures)
+    run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures, top)
     run.progress = progress
     run.warnings.extend(problem.warnings)
     matches = match_fragments(problem)
@@ -549,9 +554,9 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
         return
     done = sorted((e.fit.cost + e.soft_cost for e in run.entries.values() if e.fit is not None and e.fit.feasible))
     for k, entry in enumerate(pending):
-        kth = done[9] if len(done) >= 10 else math.inf
+        kth = done[run.top - 1] if len(done) >= run.top else math.inf
         if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
-            break  # bound-only: cannot enter the top ten
+            break  # bound-only: cannot enter the top `top`
         if run.progress is not None:
             run.progress("scoring", k + 1, len(pending))
         fit = assign(run.problem, entry.prediction, weights=run.weights)
@@ -805,7 +810,7 @@ def _explain(
         fit = assign(problem, prediction)
         if not fit.feasible:
             reasons = list(fit.reasons) + reasons
-    run, ranked = _solve(problem, time_limit_s, max_structures, progress)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress)
     rank = next((i + 1 for i, e in enumerate(ranked) if e.smiles == smiles), None)
     total = len(ranked)
     if fit is None or not fit.feasible:

@@ -179,3 +179,23 @@ def test_amide_methyls_may_show_apart():
     iso = Prediction("CC(C)C=O", (env(0, [0, 2], 6, 1.1, "d", "2 CH3"), env(1, [1], 1, 2.4, "m", "CH"),
                                   env(2, [3], 1, 9.6, "d", "CHO")))
     assert quick_bound(p, iso)[1] is not None
+
+
+@pytest.mark.parametrize(
+    "smiles, expected",
+    [
+        ("CCOC(C)=O", 0.0),          # ordinary ester
+        ("NC#Cc1ccccc1", 2.0),       # ynamine (common practice: rarely isolated)
+        ("COOC", 2.0),               # peroxide
+        ("CCCn1oo1", None),          # aromatic three-ring with two heteroatoms: penalised
+    ],
+)
+def test_unusual_groups(smiles, expected):
+    from elucidate.score.assign import unusual_groups
+
+    cost, notes = unusual_groups(smiles)
+    if expected is None:
+        assert cost >= 2.0 and notes
+    else:
+        assert cost == expected
+        assert bool(notes) == (expected > 0)

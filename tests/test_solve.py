@@ -106,3 +106,11 @@ def test_validation():
         solve(p, top=0)
     with pytest.raises(InputError, match="--time-limit"):
         solve(p, time_limit_s=0)
+
+
+def test_nitro_compound_found():
+    # 1-nitropropane, CDCl3 (from memory): the NO2 group carries no H and
+    # needs charge-separated N; it must be generated and ranked first.
+    h1 = "4.37 (t, J = 7.0 Hz, 2H), 2.03 (sext, J = 7.2 Hz, 2H), 1.03 (t, J = 7.4 Hz, 3H)"
+    r = solve(load_problem(formula="C3H7NO2", h1=h1))
+    assert r.candidates[0].smiles == "CCC[N+](=O)[O-]"

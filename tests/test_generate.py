@@ -339,3 +339,21 @@ def test_solver_style_spec() -> None:
     ester = list(generate(Spec(F("C9H10O2"), atoms=atoms[:2], fragments=(FragmentSpec("*c1ccccc1"), FragmentSpec("*C(=O)O*")))))
     assert sorted(ester) == sorted(s for s in got if _placed(s, ESTER, 1, False))
     assert fixed.visited < 2000
+
+
+def test_atom_specs_with_options_match_plain_run() -> None:
+    # Same structures whether the H distribution is given up front or the
+    # plain (option-widened) run is filtered by it afterwards.
+    cases = [
+        ("C5H5NO", [("C", 1)] * 5 + [("N", 0), ("O", 0)], Options(charge_separated=True)),
+        ("C2H6O2S", [("C", 3), ("C", 3), ("S", 0), ("O", 0), ("O", 0)], Options(hypervalent_s=True)),
+    ]
+    for formula, atoms, options in cases:
+        spec = Spec(F(formula), atoms=tuple(AtomSpec(el, h) for el, h in atoms), options=options)
+        got = list(generate(spec))
+        want = {
+            s for s in generate(Spec(F(formula), options=options))
+            if sorted((a.GetSymbol(), a.GetTotalNumHs()) for a in Chem.MolFromSmiles(s).GetAtoms())
+            == sorted(atoms)
+        }
+        assert len(got) == len(set(got)) and set(got) == want and want

@@ -92,6 +92,31 @@ def _splits(total: int, parts: int) -> Iterator[tuple[int, ...]]:
             yield (first, *rest)
 
 
+def _assign(
+    sets: tuple[frozenset[int] | None, ...], split: tuple[int, ...]
+) -> list[tuple[tuple[frozenset[int] | None, ...], ...]]:
+    """Distinct ways to deal the atoms' neighbour-H sets into groups of the
+    given sizes (atoms with equal sets are interchangeable)."""
+    from itertools import combinations as _comb
+
+    out: set[tuple[tuple[frozenset[int] | None, ...], ...]] = set()
+
+    def key(part: tuple[frozenset[int] | None, ...]) -> tuple[frozenset[int] | None, ...]:
+        return tuple(sorted(part, key=lambda x: (x is not None, sorted(x) if x is not None else [])))
+
+    def rec(rest: tuple[frozenset[int] | None, ...], sizes: tuple[int, ...], acc: tuple) -> None:  # type: ignore[type-arg]
+        if not sizes:
+            out.add(acc)
+            return
+        for idx in _comb(range(len(rest)), sizes[0]):
+            part = key(tuple(rest[i] for i in idx))
+            left = tuple(x for i, x in enumerate(rest) if i not in idx)
+            rec(left, sizes[1:], acc + (part,))
+
+    rec(sets, tuple(split), ())
+    return sorted(out, key=repr)
+
+
 def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
     """The label multisets of a spec (several when valence states vary)."""
     f = spec.formula.as_dict()
@@ -124,7 +149,10 @@ def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
         groups: dict[tuple[str, int], list] = {}  # type: ignore[type-arg]
         for a in spec.atoms:
             groups.setdefault((a.element, a.h_count), []).append(a.neighbour_h)
+        cs = spec.options.charge_separated and ("N", 0) in groups and ("O", 0) in groups
         for (el, h), sets in sorted(groups.items()):
+            if cs and (el, h) in (("N", 0), ("O", 0)):
+                continue
             v = VALENCE[el]
             states = [v]
             if el == "S" and spec.options.hypervalent_s and h == 0:
@@ -133,21 +161,30 @@ def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
                 states.append(5)
             gopts = []
             for split in _splits(len(sets), len(states)):
-                opt: list[tuple[Label, int]] | None = []
-                start = 0
-                for val, k in zip(states, split):
-                    if k and opt is not None:
-                        bs = val - h
-                        if bs < 0:
-                            opt = None
-                            break
-                        opt.append((Label(el, 0, val, bs, bs, tuple(sets[start : start + k])), k))
-                    start += k
-                if opt is not None:
-                    gopts.append(opt)
+                if any(k and val - h < 0 for val, k in zip(states, split)):
+                    continue
+                for parts in _assign(tuple(sets), split):
+                    gopts.append(
+                        [(Label(el, 0, val, val - h, val - h, part), k)
+                         for val, k, part in zip(states, split, parts) if k]
+                    )
             if not gopts:
                 return []
             per_group.append(gopts)
+        if cs:
+            nsets, osets = tuple(groups[("N", 0)]), tuple(groups[("O", 0)])
+            copts = []
+            for k in range(min(len(nsets), len(osets)) + 1):
+                for nparts in _assign(nsets, (len(nsets) - k, k)):
+                    for oparts in _assign(osets, (len(osets) - k, k)):
+                        opt = [
+                            (Label("N", 0, 3, 3, 3, nparts[0]), len(nsets) - k),
+                            (Label("N", 1, 4, 4, 4, nparts[1]), k),
+                            (Label("O", 0, 2, 2, 2, oparts[0]), len(osets) - k),
+                            (Label("O", -1, 1, 1, 1, oparts[1]), k),
+                        ]
+                        copts.append([x for x in opt if x[1]])
+            per_group.append(copts)
         h_free = 0
     out: list[Problem] = []
     for combo in product(*per_group) if per_group else [()]:

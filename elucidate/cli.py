@@ -159,41 +159,6 @@ def read_command(
 # ------------------------------------------------------- isomers (generate)
 
 
-def _formula_arg(text: str):  # type: ignore[no-untyped-def]
-    """Parse FORMULA with the parse stage when it is there, else a small local reader."""
-    try:
-        from elucidate.parse import parse_formula  # type: ignore[attr-defined]
-    except ImportError:
-        parse_formula = _read_formula
-    return parse_formula(text)
-
-
-def _read_formula(text: str):  # type: ignore[no-untyped-def]
-    # Minimal private reader, to be replaced by elucidate.parse.parse_formula.
-    import re
-
-    from elucidate.model import ELEMENTS, Formula
-
-    compact = text.replace(" ", "")
-    counts: dict[str, int] = {}
-    pos = 0
-    for m in re.finditer(r"([A-Z][a-z]?)(\d*)", compact):
-        if m.start() != pos:
-            raise InputError(f"formula {text!r}: cannot read {compact[pos:m.start()]!r} at position {pos + 1}")
-        el, num = m.group(1), m.group(2)
-        if el not in ELEMENTS:
-            raise InputError(f"formula {text!r}: unknown element {el!r} at position {m.start() + 1}")
-        counts[el] = counts.get(el, 0) + (int(num) if num else 1)
-        pos = m.end()
-    if pos != len(compact) or not counts:
-        raise InputError(f"formula {text!r}: cannot read {compact[pos:]!r} at position {pos + 1}")
-    order = ["C", "H"] + sorted(el for el in counts if el not in ("C", "H"))
-    f = Formula(tuple((el, counts[el]) for el in order if counts.get(el)))
-    if f.dou_twice < 0 or f.dou_twice % 2:
-        raise InputError(f"formula {text!r}: degree of unsaturation {f.dou} is not a whole number >= 0")
-    return f
-
-
 @app.command()
 @user_errors
 def isomers(
@@ -239,9 +204,10 @@ def isomers(
     from elucidate.errors import LimitReached
     from elucidate.generate import Limits, Options, Spec, Stats, count, generate
     from elucidate.generate.isomers import parts_smiles, validate_spec
+    from elucidate.parse import parse_formula
 
     spec = Spec(
-        formula=_formula_arg(formula),
+        formula=parse_formula(formula),
         require=tuple(require or ()),
         forbid=tuple(forbid or ()),
         options=Options(

@@ -17,6 +17,8 @@ missed; the final set removes duplicates, Kekulé forms included.
 
 from __future__ import annotations
 
+import functools
+
 from rdkit import Chem
 
 VALENCE = {"C": 4, "Si": 4, "N": 3, "P": 3, "O": 2, "S": 2, "F": 1, "Cl": 1, "Br": 1, "I": 1}
@@ -47,6 +49,16 @@ def _bsum(n: int, bonds: frozenset[tuple[int, int, int]]) -> list[int]:
 
 
 def reference_isomers(counts: dict[str, int]) -> set[str]:
+    """Cached front of :func:`_reference_isomers` (returns a copy)."""
+    return set(_cached(tuple(sorted(counts.items()))))
+
+
+@functools.cache
+def _cached(items: tuple[tuple[str, int], ...]) -> frozenset[str]:
+    return frozenset(_reference_isomers(dict(items)))
+
+
+def _reference_isomers(counts: dict[str, int]) -> set[str]:
     """Canonical SMILES of every isomer of a formula (heavy atoms + H).
 
     Parameters

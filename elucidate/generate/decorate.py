@@ -15,6 +15,7 @@ for graphs that have an alternating cycle at all).
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from operator import itemgetter
 from typing import Callable, Iterator
@@ -112,6 +113,7 @@ class Structure:
     edges: tuple[tuple[int, int], ...]
     orders: tuple[int, ...]
     mol: object = None  # RDKit Mol if one was built on the way
+    skeleton: Skeleton | None = None  # set when vertex order = skeleton order
 
     def hs(self) -> list[int]:
         bs = [0] * len(self.labels)
@@ -136,8 +138,13 @@ def decorate(
     filters: Filters,
     visit: list[int],
     colour_hook: Callable[[tuple[int, ...]], None] | None = None,
-) -> Iterator[Structure]:
+    counting: bool = False,
+) -> Iterator[tuple[tuple[Label, ...], list[tuple[int, ...]]]]:
     """Every structure on this skeleton, one per orbit, Kekulé partners merged.
+
+    Yields, per colouring, the vertex labels and the list of extra-bond-order
+    vectors (bond order - 1 per edge, edges in ``sk.edges`` order); with
+    ``counting``, the number of them instead of the list.
 
     Parameters
     ----------
@@ -159,7 +166,12 @@ def decorate(
     nl = len(labels)
     # candidate labels per vertex
     cands = [
-        [i for i in range(nl) if labels[i].bs_hi >= deg[v] and labels[i].bs_lo <= 3 * deg[v]]
+        [
+            i
+            for i in range(nl)
+            if (labels[i].degree == deg[v])
+            or (labels[i].degree < 0 and labels[i].bs_hi >= deg[v] and labels[i].bs_lo <= 3 * deg[v])
+        ]
         for v in range(n)
     ]
     nbrs = [[w for w in range(n) if sk.adj[v] >> w & 1] for v in range(n)]
@@ -206,19 +218,6 @@ def decorate(
                         return False
         return True
 
-    def colourings(t: int) -> Iterator[tuple[int, ...]]:
-        if t == n:
-            yield tuple(colour)
-            return
-        for i in cands[t]:
-            if counts[i]:
-                visit[0] += 1
-                counts[i] -= 1
-                colour[t] = i
-                if colour_ok(t):
-                    yield from colourings(t + 1)
-                counts[i] += 1
-
     # bond-order search data
     inc_last = [-1] * n
     for j, (u, v) in enumerate(edges):
@@ -235,40 +234,220 @@ def decorate(
         small_ring = [0 < r < filters.min_ring_triple for r in sk.edge_smallest_ring]
     edge_index = {e: j for j, e in enumerate(edges)}
 
-    for c in colourings(0):
-        if any(p(c) < c for p in gperm):
+    # one bond-order search per skeleton, inside the envelope of all colourings
+    # exact bond-order sums (every atom's H fixed): solve bond orders first and
+    # let the colouring follow only prefixes of feasible per-vertex sums
+    exact = all(lab.bs_lo == lab.bs_hi for lab in labels)
+    prefixes: list[set[tuple[int, ...]]] = []
+    xs: list[tuple[int, ...]] = []
+    vs: list[tuple[int, ...]] = []
+    if exact:
+        if any(not cands[v] for v in range(n)):
+            return
+        lo_env = [min(labels[i].bs_lo - deg[v] for i in cands[v]) for v in range(n)]
+        hi_env = [max(labels[i].bs_hi - deg[v] for i in cands[v]) for v in range(n)]
+        lo_env = [max(0, x) for x in lo_env]
+        if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
+            return
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        if not xs:
+            return
+        prefixes = [set() for _ in range(n)]
+        for vsum in vs:
+            for t in range(n):
+                prefixes[t].add(vsum[: t + 1])
+    ext = [0] * n
+
+    reps: list[tuple[int, ...]] = []
+    units = any(lab.is_unit for lab in labels)
+    check = need_nh or charge_sep
+    nvis = 0
+
+    def colourings(t: int) -> None:
+        nonlocal nvis
+        for i in cands[t]:
+            if counts[i]:
+                nvis += 1
+                colour[t] = i
+                if exact:
+                    ext[t] = labels[i].bs_lo - deg[t]
+                    if tuple(ext[: t + 1]) not in prefixes[t]:
+                        continue
+                if check and not colour_ok(t):
+                    continue
+                if t + 1 == n:
+                    c = tuple(colour)
+                    if gperm and any(p(c) < c for p in gperm):
+                        continue
+                    if need_nh and not _nh_matching(c, labels, nbrs, carbon_h):
+                        continue
+                    if units and not gadget_ok(c, labels, nbrs):
+                        continue
+                    reps.append(c)
+                else:
+                    counts[i] -= 1
+                    colourings(t + 1)
+                    counts[i] += 1
+
+    colourings(0)
+    visit[0] += nvis
+    if not reps:
+        return
+
+    if exact:
+        pass
+    elif len(reps) == 1:
+        c0 = reps[0]
+        lo_env = [max(0, labels[c0[v]].bs_lo - deg[v]) for v in range(n)]
+        hi_env = [labels[c0[v]].bs_hi - deg[v] for v in range(n)]
+    else:
+        seen_at = [0] * n  # bitmask of label indices seen per vertex
+        for c in reps:
+            for v in range(n):
+                seen_at[v] |= 1 << c[v]
+        lo_env = []
+        hi_env = []
+        for v in range(n):
+            idx = [i for i in range(nl) if seen_at[v] >> i & 1]
+            lo_env.append(min(max(0, labels[i].bs_lo - deg[v]) for i in idx))
+            hi_env.append(max(labels[i].bs_hi - deg[v] for i in idx))
+    if not exact:
+        if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
+            return
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        if not xs:
+            return
+    index: dict[tuple[int, ...], list[int]] | None = None
+    if exact:
+        index = {}
+        for k, vsum in enumerate(vs):
+            index.setdefault(vsum, []).append(k)
+    lohi = [[(lab.bs_lo - deg[v], lab.bs_hi - deg[v]) for v in range(n)] for lab in labels]
+    nohet = filters.no_hetero_hetero
+    nocum = filters.no_cumulenes
+    # solutions that may have a Kekulé partner (independent of the colouring)
+    # (an alternating cycle needs a cycle: trees never qualify)
+    ring_idx = list(range(m)) if m >= n and not units else []
+    flagged: set[int] = set()
+    if ring_idx:
+        for k, x in enumerate(xs):
+            if 1 in x and _may_have_partner(sk, x, ring_idx):
+                flagged.add(k)
+    all_idx = range(len(xs))
+    eperm_cache: dict[int, object] = {}
+    gfull = group[1:]
+    for c in reps:
+        if index is not None:
+            cand = index.get(tuple(max(0, lohi[c[v]][v][0]) for v in range(n)), [])
+        else:
+            narrow = []
+            for v in range(n):
+                lv, hv = lohi[c[v]][v]
+                if lv > lo_env[v] or hv < hi_env[v]:
+                    narrow.append((v, lv, hv))
+            if not narrow:
+                cand = all_idx  # type: ignore[assignment]
+            elif len(narrow) == 1:
+                v, lv, hv = narrow[0]
+                cand = [k for k, vsum in enumerate(vs) if lv <= vsum[v] <= hv]
+            else:
+                cand = [
+                    k for k, vsum in enumerate(vs)
+                    if all(lv <= vsum[v] <= hv for v, lv, hv in narrow)
+                ]
+        if not cand:
             continue
-        if need_nh and not _nh_matching(c, labels, nbrs, carbon_h):
-            continue
-        stab = [g for g in group[1:] if all(c[g[i]] == c[i] for i in range(n))]
-        eperm = [
-            itemgetter(*[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges])
-            for g in stab
-        ] if m > 1 else []
         if colour_hook is not None:
             colour_hook(c)
         vlabels = tuple(labels[i] for i in c)
-        lo = [max(0, lab.bs_lo - deg[v]) for v, lab in enumerate(vlabels)]
-        hi = [lab.bs_hi - deg[v] for v, lab in enumerate(vlabels)]
-        if sum(lo) > 2 * extra_total or sum(hi) < 2 * extra_total:
+        eperm = []
+        if gperm:
+            for gi, p in enumerate(gperm):
+                if p(c) == c:
+                    ep = eperm_cache.get(gi)
+                    if ep is None:
+                        g = gfull[gi]
+                        ep = eperm_cache[gi] = itemgetter(
+                            *[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges]
+                        ) if m > 1 else None
+                    if ep is not None:
+                        eperm.append(ep)
+        simple = not (nohet or nocum or eperm)
+        if simple and counting:
+            k = len(cand)
+            fl = [i for i in cand if i in flagged] if flagged else []
+            for i in fl:
+                x = xs[i]
+                st = Structure(vlabels, edges, tuple(o + 1 for o in x))
+                if not _kekule_canonical(st, x, eperm, filters):
+                    k -= 1
+            if k:
+                yield vlabels, k  # type: ignore[misc]
             continue
-        het = [lab.hetero for lab in vlabels]
-        isc = [lab.symbol == "C" for lab in vlabels]
-        chg = [lab.charge for lab in vlabels]
-        for x in _bond_orders(
-            m, eu, ev, closes, lo, hi, extra_total, het, isc, chg, small_ring, filters, visit
-        ):
-            if eperm and any(p(x) < x for p in eperm):
+        hh: list[int] = []
+        if nohet:
+            hh = [
+                j
+                for j, (u, v) in enumerate(edges)
+                if vlabels[u].hetero and vlabels[v].hetero and not (vlabels[u].charge and vlabels[v].charge)
+            ]
+        carbons = [v for v in range(n) if vlabels[v].symbol == "C"] if nocum else []
+        out = []
+        for i in cand:
+            x = xs[i]
+            if hh and not all(x[j] for j in hh):
                 continue
-            orders = tuple(o + 1 for o in x)
-            st = Structure(vlabels, edges, orders)
-            if 1 in x and _may_have_partner(sk, x):
+            if carbons and _cumulated(x, edges, carbons):
+                continue
+            if eperm and any(p(x) < x for p in eperm):  # type: ignore[operator]
+                continue
+            if i in flagged:
+                st = Structure(vlabels, edges, tuple(o + 1 for o in x))
                 if not _kekule_canonical(st, x, eperm, filters):
                     continue
-            yield st
+            out.append(x)
+        if out:
+            yield vlabels, (len(out) if counting else out)  # type: ignore[misc]
 
 
-def _bond_orders(
+def gadget_ok(c: tuple[int, ...], labels: tuple[Label, ...], nbrs: list[list[int]]) -> bool:
+    """Do the gadget vertices of a colouring form whole fragments?"""
+    for v, li in enumerate(c):
+        lab = labels[li]
+        if not lab.is_unit:
+            continue
+        if lab.port < 0:  # centre: neighbours are its own ports, right classes
+            for w in nbrs[v]:
+                lw = labels[c[w]]
+                if lw.unit != lab.unit or lw.port < 0 or lw.degree != 2:
+                    return False
+        elif lab.degree == 2:  # port of a multi-port fragment
+            centres = [w for w in nbrs[v] if labels[c[w]].is_unit and labels[c[w]].port < 0]
+            if len(centres) != 1 or labels[c[centres[0]]].unit != lab.unit:
+                return False
+            other = [w for w in nbrs[v] if w != centres[0]][0]
+            lo = labels[c[other]]
+            if lo.is_unit and lo.unit == lab.unit and lo.degree == 2 and centres[0] in nbrs[other]:
+                return False  # both ends in one fragment
+        else:  # one-port fragment: its neighbour is not a centre
+            w = nbrs[v][0]
+            if labels[c[w]].is_unit and labels[c[w]].port < 0:
+                return False
+    return True
+
+
+
+def _cumulated(x: tuple[int, ...], edges: tuple[tuple[int, int], ...], carbons: list[int]) -> bool:
+    dbl: dict[int, int] = {}
+    for j, o in enumerate(x):
+        if o == 1:
+            u, v = edges[j]
+            dbl[u] = dbl.get(u, 0) + 1
+            dbl[v] = dbl.get(v, 0) + 1
+    return any(dbl.get(v, 0) > 1 for v in carbons)
+
+
+def _solutions(
     m: int,
     eu: list[int],
     ev: list[int],
@@ -276,61 +455,54 @@ def _bond_orders(
     lo: list[int],
     hi: list[int],
     total: int,
-    het: list[bool],
-    isc: list[bool],
-    chg: list[int],
     small_ring: list[bool],
-    filters: Filters,
     visit: list[int],
-) -> Iterator[tuple[int, ...]]:
-    """Extra bond order (0, 1, 2) per edge; sums per vertex within [lo, hi]."""
+) -> tuple[list[tuple[int, ...]], list[tuple[int, ...]]]:
+    """Every extra-bond-order vector (0, 1, 2 per edge) with per-vertex sums
+    within [lo, hi] and ``total`` in all; with the per-vertex sums."""
+    xs: list[tuple[int, ...]] = []
+    vs: list[tuple[int, ...]] = []
     cur = [0] * len(lo)
-    dbl = [0] * len(lo)
     x = [0] * m
-    nohet = filters.no_hetero_hetero
-    nocum = filters.no_cumulenes
     if m == 0:
         if total == 0 and all(lv <= 0 for lv in lo):
-            yield ()
-        return
+            xs.append(())
+            vs.append(tuple(cur))
+        return xs, vs
+    count = 0
 
-    def rec(j: int, left: int) -> Iterator[tuple[int, ...]]:
+    def rec(j: int, left: int) -> None:
+        nonlocal count
         if j == m:
             if left == 0:
-                yield tuple(x)
+                xs.append(tuple(x))
+                vs.append(tuple(cur))
+            return
+        if left > 2 * (m - j):
             return
         u = eu[j]
         v = ev[j]
         top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
-        if left > 2 * (m - j):
-            return
+        cl = closes[j]
         for o in range(top + 1):
-            visit[0] += 1
-            if o == 0 and nohet and het[u] and het[v] and not (chg[u] and chg[v]):
-                continue
+            count += 1
             if o == 2 and small_ring[j]:
                 continue
             cur[u] += o
             cur[v] += o
-            if o == 1:
-                dbl[u] += 1
-                dbl[v] += 1
-            ok = True
-            for w in closes[j]:
-                if cur[w] < lo[w] or (nocum and isc[w] and dbl[w] > 1):
-                    ok = False
+            for w in cl:
+                if cur[w] < lo[w]:
                     break
-            if ok:
+            else:
                 x[j] = o
-                yield from rec(j + 1, left - o)
+                rec(j + 1, left - o)
             cur[u] -= o
             cur[v] -= o
-            if o == 1:
-                dbl[u] -= 1
-                dbl[v] -= 1
         x[j] = 0
 
-    yield from rec(0, total)
+    rec(0, total)
+    visit[0] += count
+    return xs, vs
 
 
 def _nh_matching(
@@ -367,17 +539,20 @@ def _bipartite(sums: list[int], sets: tuple[frozenset[int] | None, ...]) -> bool
     return all(try_v(i, set()) for i in range(len(sums)))
 
 
-def _may_have_partner(sk: Skeleton, x: tuple[int, ...]) -> bool:
+def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> bool:
     """Necessary condition for a Kekulé partner: an alternating cycle of
     ring double bonds and ring single bonds may exist."""
-    ring = sk.ring_edges
+    nd = 0
+    for j in ring_idx:
+        if x[j] == 1:
+            nd += 1
+    if nd < 2:
+        return False
     edges = sk.edges
     dmask = [0] * sk.n
     smask = [0] * sk.n
-    nd = 0
-    for j, (u, v) in enumerate(edges):
-        if not ring[j]:
-            continue
+    for j in ring_idx:
+        u, v = edges[j]
         if x[j] == 1:
             dmask[u] |= 1 << v
             dmask[v] |= 1 << u
@@ -385,8 +560,6 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...]) -> bool:
         elif x[j] == 0:
             smask[u] |= 1 << v
             smask[v] |= 1 << u
-    if nd < 2:
-        return False
     alive = 0
     for v in range(sk.n):
         if dmask[v]:
@@ -403,6 +576,79 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...]) -> bool:
                 alive &= ~b
                 changed = True
     return alive != 0
+
+
+_BOND_SYMBOL = ("", "", "=", "#")
+
+
+@functools.cache
+def _atom_token(symbol: str, h: int, charge: int) -> str:
+    hs = "" if h == 0 else ("H" if h == 1 else f"H{h}")
+    ch = "" if charge == 0 else ("+" if charge == 1 else "-" if charge == -1 else f"{charge:+d}")
+    return f"[{symbol}{hs}{ch}]"
+
+
+@functools.cache
+def _tokens(lab: Label) -> tuple[str, ...]:
+    return tuple(_atom_token(lab.symbol, h, lab.charge) for h in range(9))
+
+
+def structure_smiles(st: Structure) -> str:
+    """RDKit canonical SMILES (aromatic form) of a structure.
+
+    With a skeleton at hand, a Kekulé SMILES with every atom in brackets is
+    written from the skeleton's template and read back by RDKit without the
+    full sanitisation (property cache, ring perception, aromaticity only),
+    which costs about as much as RDKit's own writing step.
+    """
+    from rdkit import Chem
+
+    sk = st.skeleton
+    if sk is None or st.mol is not None:
+        return Chem.MolToSmiles(structure_mol(st))
+    fmt, getter = sk.smiles_writer
+    labels = st.labels
+    combined = [_tokens(lab)[h] for lab, h in zip(labels, st.hs())]
+    combined += [_BOND_SYMBOL[o] for o in st.orders]
+    vals = getter(combined)
+    m = Chem.MolFromSmiles(fmt % vals, sanitize=False)
+    m.UpdatePropertyCache(strict=False)
+    if len(st.orders) >= len(labels):
+        if _may_be_aromatic(st):
+            Chem.GetSymmSSSR(m)
+            Chem.SetAromaticity(m)
+        else:
+            Chem.FastFindRings(m)
+    return Chem.MolToSmiles(m)
+
+
+def _may_be_aromatic(st: Structure) -> bool:
+    """Necessary condition for RDKit to find an aromatic ring: a cycle through
+    atoms that are not saturated carbon/silicon (every atom of an aromatic ring
+    has a double bond or is a heteroatom that can give a lone pair)."""
+    n = len(st.labels)
+    unsat = [False] * n
+    for (u, v), o in zip(st.edges, st.orders):
+        if o > 1:
+            unsat[u] = unsat[v] = True
+    if not any(unsat) and all(lab.symbol in ("C", "Si") for lab in st.labels):
+        return False
+    ok = [unsat[i] or lab.symbol not in ("C", "Si") for i, lab in enumerate(st.labels)]
+    parent = list(range(n))
+
+    def find(a: int) -> int:
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for u, v in st.edges:
+        if ok[u] and ok[v]:
+            ru, rv = find(u), find(v)
+            if ru == rv:
+                return True
+            parent[ru] = rv
+    return False
 
 
 def structure_mol(st: Structure):  # type: ignore[no-untyped-def]
@@ -437,7 +683,8 @@ def _kekule_canonical(
     from rdkit import Chem
 
     mol = structure_mol(st)
-    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic()]
+    # aromatic bonds that are not triple (RDKit also marks an aryne's C#C aromatic)
+    arom = [j for j, b in enumerate(mol.GetBonds()) if b.GetIsAromatic() and x[j] < 2]
     if len(arom) < 2:
         return True
     # doubles needed per atom inside the aromatic bond set

@@ -18,7 +18,15 @@ from itertools import product
 from typing import Iterator
 
 from elucidate.errors import InputError, LimitReached
-from elucidate.generate.decorate import Filters, Label, Problem, Structure, decorate, structure_mol
+from elucidate.generate.decorate import (
+    Filters,
+    Label,
+    Problem,
+    Structure,
+    decorate,
+    structure_mol,
+    structure_smiles,
+)
 from elucidate.generate.fragments import FragmentPlan, plan_fragments
 from elucidate.generate.skeletons import Skeleton, skeletons
 from elucidate.generate.spec import Limits, Spec, Stats
@@ -84,6 +92,31 @@ def _splits(total: int, parts: int) -> Iterator[tuple[int, ...]]:
             yield (first, *rest)
 
 
+def _assign(
+    sets: tuple[frozenset[int] | None, ...], split: tuple[int, ...]
+) -> list[tuple[tuple[frozenset[int] | None, ...], ...]]:
+    """Distinct ways to deal the atoms' neighbour-H sets into groups of the
+    given sizes (atoms with equal sets are interchangeable)."""
+    from itertools import combinations as _comb
+
+    out: set[tuple[tuple[frozenset[int] | None, ...], ...]] = set()
+
+    def key(part: tuple[frozenset[int] | None, ...]) -> tuple[frozenset[int] | None, ...]:
+        return tuple(sorted(part, key=lambda x: (x is not None, sorted(x) if x is not None else [])))
+
+    def rec(rest: tuple[frozenset[int] | None, ...], sizes: tuple[int, ...], acc: tuple) -> None:  # type: ignore[type-arg]
+        if not sizes:
+            out.add(acc)
+            return
+        for idx in _comb(range(len(rest)), sizes[0]):
+            part = key(tuple(rest[i] for i in idx))
+            left = tuple(x for i, x in enumerate(rest) if i not in idx)
+            rec(left, sizes[1:], acc + (part,))
+
+    rec(sets, tuple(split), ())
+    return sorted(out, key=repr)
+
+
 def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
     """The label multisets of a spec (several when valence states vary)."""
     f = spec.formula.as_dict()
@@ -116,7 +149,10 @@ def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
         groups: dict[tuple[str, int], list] = {}  # type: ignore[type-arg]
         for a in spec.atoms:
             groups.setdefault((a.element, a.h_count), []).append(a.neighbour_h)
+        cs = spec.options.charge_separated and ("N", 0) in groups and ("O", 0) in groups
         for (el, h), sets in sorted(groups.items()):
+            if cs and (el, h) in (("N", 0), ("O", 0)):
+                continue
             v = VALENCE[el]
             states = [v]
             if el == "S" and spec.options.hypervalent_s and h == 0:
@@ -125,21 +161,30 @@ def _problems(spec: Spec, plan: FragmentPlan) -> list[Problem]:
                 states.append(5)
             gopts = []
             for split in _splits(len(sets), len(states)):
-                opt: list[tuple[Label, int]] | None = []
-                start = 0
-                for val, k in zip(states, split):
-                    if k and opt is not None:
-                        bs = val - h
-                        if bs < 0:
-                            opt = None
-                            break
-                        opt.append((Label(el, 0, val, bs, bs, tuple(sets[start : start + k])), k))
-                    start += k
-                if opt is not None:
-                    gopts.append(opt)
+                if any(k and val - h < 0 for val, k in zip(states, split)):
+                    continue
+                for parts in _assign(tuple(sets), split):
+                    gopts.append(
+                        [(Label(el, 0, val, val - h, val - h, part), k)
+                         for val, k, part in zip(states, split, parts) if k]
+                    )
             if not gopts:
                 return []
             per_group.append(gopts)
+        if cs:
+            nsets, osets = tuple(groups[("N", 0)]), tuple(groups[("O", 0)])
+            copts = []
+            for k in range(min(len(nsets), len(osets)) + 1):
+                for nparts in _assign(nsets, (len(nsets) - k, k)):
+                    for oparts in _assign(osets, (len(osets) - k, k)):
+                        opt = [
+                            (Label("N", 0, 3, 3, 3, nparts[0]), len(nsets) - k),
+                            (Label("N", 1, 4, 4, 4, nparts[1]), k),
+                            (Label("O", 0, 2, 2, 2, oparts[0]), len(osets) - k),
+                            (Label("O", -1, 1, 1, 1, oparts[1]), k),
+                        ]
+                        copts.append([x for x in opt if x[1]])
+            per_group.append(copts)
         h_free = 0
     out: list[Problem] = []
     for combo in product(*per_group) if per_group else [()]:
@@ -167,7 +212,8 @@ def _label_key(lab: Label) -> tuple:  # type: ignore[type-arg]
 def _skeleton_list(
     n: int, max_edges: int, caps: tuple[int, ...], girth5: bool, max_ring: int | None
 ) -> tuple[Skeleton, ...]:
-    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5)
+    leaves = caps.count(1) if n >= 3 else 0
+    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5, min_leaves=leaves)
     if max_ring is not None:
         sks = [
             s
@@ -192,8 +238,14 @@ def _work(spec: Spec) -> tuple[list[Problem], list[tuple[int, Skeleton]], Fragme
 
 
 def _structures(
-    spec: Spec, part: tuple[int, int] | None, stats: Stats, limits: Limits | None
-) -> Iterator[Structure]:
+    spec: Spec,
+    part: tuple[int, int] | None,
+    stats: Stats,
+    limits: Limits | None,
+    counting: bool = False,
+) -> Iterator[Structure | int]:
+    """Structures of the spec; with ``counting``, plain batch sizes (ints)
+    wherever no per-structure check is needed."""
     probs, items, plan = _work(spec)
     if part is not None:
         i, k = part
@@ -205,6 +257,7 @@ def _structures(
     filters = Filters(o.no_hetero_hetero, o.no_cumulenes, o.min_ring_triple)
     req = [_smarts(s) for s in spec.require]
     forb = [_smarts(s) for s in spec.forbid]
+    per_structure = bool(req or forb or plan.units)
     visit = [0]
     deadline = None
     if limits is not None and limits.time_limit_s is not None:
@@ -217,23 +270,39 @@ def _structures(
     try:
         for pi, sk in items:
             stats.skeletons += 1
-            for st in decorate(sk, probs[pi], filters, visit, colour_seen):
-                stats.bond_graphs += 1
-                if plan.units:
-                    st = plan.expand(st, spec)
-                    if st is None:
-                        continue
-                if req or forb:
-                    mol = structure_mol(st)
-                    if any(not mol.HasSubstructMatch(q) for q in req):
-                        continue
-                    if any(mol.HasSubstructMatch(q) for q in forb):
-                        continue
-                if max_n is not None and stats.emitted >= max_n:
-                    stats.stopped_by = "max_structures"
-                    return
-                stats.emitted += 1
-                yield st
+            edges = sk.edges
+            fast = counting and not per_structure
+            for vlabels, xs in decorate(sk, probs[pi], filters, visit, colour_seen, fast):
+                if fast:
+                    k = xs  # type: ignore[assignment]
+                    stats.bond_graphs += k
+                    if max_n is not None and stats.emitted + k > max_n:
+                        k = max_n - stats.emitted
+                        stats.emitted += k
+                        yield k
+                        stats.stopped_by = "max_structures"
+                        return
+                    stats.emitted += k
+                    yield k
+                    continue
+                stats.bond_graphs += len(xs)
+                for x in xs:
+                    st: Structure | None = Structure(vlabels, edges, tuple(v + 1 for v in x), None, sk)
+                    if plan.units:
+                        st = plan.expand(st, spec)  # type: ignore[arg-type]
+                        if st is None:
+                            continue
+                    if req or forb:
+                        mol = structure_mol(st)
+                        if any(not mol.HasSubstructMatch(q) for q in req):
+                            continue
+                        if any(mol.HasSubstructMatch(q) for q in forb):
+                            continue
+                    if max_n is not None and stats.emitted >= max_n:
+                        stats.stopped_by = "max_structures"
+                        return
+                    stats.emitted += 1
+                    yield 1 if counting else st  # type: ignore[misc]
                 if deadline is not None and time.monotonic() > deadline:
                     stats.stopped_by = "time_limit"
                     return
@@ -293,7 +362,7 @@ def _generate(
     from rdkit import Chem
 
     for st in _structures(spec, part, stats, limits):
-        yield Chem.MolToSmiles(structure_mol(st))
+        yield structure_smiles(st)  # type: ignore[arg-type]
     if stats.stopped_by:
         raise LimitReached(f"stopped by {stats.stopped_by.replace('_', ' ')} after {stats.emitted} structures")
 
@@ -302,8 +371,8 @@ def _count_part(args: tuple[Spec, Limits | None, tuple[int, int] | None]) -> tup
     spec, limits, part = args
     st = Stats()
     k = 0
-    for _ in _structures(spec, part, st, limits):
-        k += 1
+    for batch in _structures(spec, part, st, limits, counting=True):
+        k += batch  # type: ignore[operator]
     return k, st
 
 
@@ -366,7 +435,7 @@ def parts_smiles(args: tuple[Spec, Limits | None, tuple[int, int]]) -> tuple[lis
     from rdkit import Chem
 
     st = Stats()
-    out = [Chem.MolToSmiles(structure_mol(s)) for s in _structures(spec, part, st, limits)]
+    out = [structure_smiles(s) for s in _structures(spec, part, st, limits)]  # type: ignore[arg-type]
     return out, st
 
 

@@ -62,19 +62,95 @@ class Skeleton:
         """All automorphisms as vertex permutations (identity included)."""
         import pynauty
 
-        gens = pynauty.autgrp(_nauty_graph(self.n, self.adj))[0]
+        if self.n == 1:
+            return [(0,)]
+        gens = _nw().graph_autgrp(_nauty_graph(self.n, self.adj))[0]
+        if not gens:
+            return [tuple(range(self.n))]
         return _closure(self.n, [tuple(g) for g in gens])
 
     @functools.cached_property
     def ring_edges(self) -> tuple[bool, ...]:
         """Per edge: does it lie on a cycle (is it not a bridge)?"""
-        out = []
-        for u, v in self.edges:
-            adj = list(self.adj)
-            adj[u] &= ~(1 << v)
-            adj[v] &= ~(1 << u)
-            out.append(_reach(adj, u) >> v & 1 == 1)
-        return tuple(out)
+        m = len(self.edges)
+        if m == self.n - 1:
+            return (False,) * m
+        bridges = _bridges(self.n, self.adj)
+        return tuple((u, v) not in bridges for u, v in self.edges)
+
+    @functools.cached_property
+    def smiles_template(self) -> tuple[str, tuple[int, ...]]:
+        """A SMILES writing plan for this skeleton: a ``%``-format string and
+        its slots (vertex v as ``v``, edge j as ``-1 - j``), so a decorated
+        skeleton becomes a (Kekulé, all-bracket) SMILES by one substitution."""
+        n = self.n
+        nbrs = [[w for w in range(n) if self.adj[v] >> w & 1] for v in range(n)]
+        eidx = {e: j for j, e in enumerate(self.edges)}
+        seen = [False] * n
+        children: list[list[int]] = [[] for _ in range(n)]
+        opens: list[list[tuple[int, int]]] = [[] for _ in range(n)]  # (edge, digit)
+        closes: list[list[int]] = [[] for _ in range(n)]  # digits
+        nring = 0
+
+        done: set[int] = set()
+
+        def dfs(v: int, parent: int) -> None:
+            nonlocal nring
+            seen[v] = True
+            for w in nbrs[v]:
+                if w == parent:
+                    continue
+                e = eidx[(min(v, w), max(v, w))]
+                if seen[w]:
+                    if e not in done:  # back edge: w is an ancestor of v
+                        done.add(e)
+                        nring += 1
+                        opens[w].append((e, nring))
+                        closes[v].append(nring)
+                    continue
+                children[v].append(w)
+                dfs(w, v)
+
+        dfs(0, -1)
+        fmt: list[str] = []
+        slots: list[int] = []
+
+        def digit(d: int) -> str:
+            return str(d) if d < 10 else f"%%{d}"
+
+        def write(v: int) -> None:
+            fmt.append("%s")
+            slots.append(v)
+            for e, d in opens[v]:
+                fmt.append("%s" + digit(d))
+                slots.append(-1 - e)
+            for d in closes[v]:
+                fmt.append(digit(d))
+            kids = children[v]
+            for i, w in enumerate(kids):
+                e = eidx[(min(v, w), max(v, w))]
+                if i < len(kids) - 1:
+                    fmt.append("(%s")
+                    slots.append(-1 - e)
+                    write(w)
+                    fmt.append(")")
+                else:
+                    fmt.append("%s")
+                    slots.append(-1 - e)
+                    write(w)
+
+        write(0)
+        return "".join(fmt), tuple(slots)
+
+    @functools.cached_property
+    def smiles_writer(self) -> tuple[str, Callable[[list[str]], tuple[str, ...]]]:
+        """The template with an itemgetter picking its values from a list of
+        atom tokens (vertex order) followed by bond symbols (edge order)."""
+        fmt, slots = self.smiles_template
+        idx = [i if i >= 0 else self.n + (-1 - i) for i in slots]
+        if len(idx) == 1:
+            return fmt, lambda vals: (vals[idx[0]],)
+        return fmt, itemgetter(*idx)
 
     @functools.cached_property
     def edge_smallest_ring(self) -> tuple[int, ...]:
@@ -90,10 +166,33 @@ class Skeleton:
 
 
 def _nauty_graph(n: int, adj: tuple[int, ...] | list[int]):  # type: ignore[no-untyped-def]
+    """A pynauty Graph built without its per-call input checks (our adjacency
+    lists are valid by construction); same attributes as ``pynauty.Graph``."""
     import pynauty
 
-    ad = {v: [w for w in range(v + 1, n) if adj[v] >> w & 1] for v in range(n)}
-    return pynauty.Graph(n, adjacency_dict=ad)
+    g = pynauty.Graph.__new__(pynauty.Graph)
+    g.number_of_vertices = n
+    g.directed = False
+    ad = {}
+    for v in range(n):
+        m = adj[v] >> (v + 1)
+        w = v + 1
+        lst = []
+        while m:
+            if m & 1:
+                lst.append(w)
+            m >>= 1
+            w += 1
+        ad[v] = lst
+    g._adjacency_dict = ad
+    g._vertex_coloring = []
+    return g
+
+
+def _nw():  # type: ignore[no-untyped-def]
+    from pynauty import nautywrap
+
+    return nautywrap
 
 
 def _closure(n: int, gens: list[tuple[int, ...]]) -> list[tuple[int, ...]]:
@@ -104,11 +203,41 @@ def _closure(n: int, gens: list[tuple[int, ...]]) -> list[tuple[int, ...]]:
     while todo:
         p = todo.pop()
         for g in gens:
-            q = tuple(g[i] for i in p)
+            q = tuple(map(g.__getitem__, p))
             if q not in seen:
                 seen.add(q)
                 out.append(q)
                 todo.append(q)
+    return out
+
+
+def _bridges(n: int, adj: tuple[int, ...]) -> set[tuple[int, int]]:
+    """Bridges ``(u, v)``, ``u < v``, by Tarjan's low-link depth-first search."""
+    disc = [-1] * n
+    low = [0] * n
+    out: set[tuple[int, int]] = set()
+    t = 0
+    disc[0] = low[0] = 0
+    stack = [(0, -1, [w for w in range(n) if adj[0] >> w & 1])]
+    while stack:
+        v, parent, todo = stack[-1]
+        if todo:
+            w = todo.pop()
+            if w == parent:
+                continue
+            if disc[w] < 0:
+                t += 1
+                disc[w] = low[w] = t
+                stack.append((w, v, [x for x in range(n) if adj[w] >> x & 1]))
+            elif disc[w] < low[v]:
+                low[v] = disc[w]
+        else:
+            stack.pop()
+            if parent >= 0:
+                if low[v] < low[parent]:
+                    low[parent] = low[v]
+                if low[v] > disc[parent]:
+                    out.add((min(v, parent), max(v, parent)))
     return out
 
 
@@ -174,6 +303,7 @@ def skeletons(
     min_edges: int = 0,
     girth5: bool = False,
     on_visit: Callable[[int], None] | None = None,
+    min_leaves: int = 0,
 ) -> list[Skeleton]:
     """All connected simple graphs on ``n`` vertices, one per isomorphism class.
 
@@ -191,6 +321,11 @@ def skeletons(
         Smallest number of edges of a final graph.
     girth5 : bool
         Leave out graphs with a 3- or 4-membered cycle.
+    min_leaves : int
+        Atoms that can only be leaves (one bond-order unit): a final graph
+        needs at least this many vertices of degree 1.  Along the canonical
+        construction path a graph on k vertices has at least
+        ``min_leaves - (n - k)`` of them, which prunes early.
     on_visit : callable, optional
         Called with the number of candidate graphs examined per parent (for
         the statistics of partial structures visited).
@@ -202,7 +337,10 @@ def skeletons(
     """
     if n < 1:
         return []
-    return [Skeleton(n, adj) for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit)]
+    return [
+        Skeleton(n, adj)
+        for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves)
+    ]
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:
@@ -216,9 +354,9 @@ def _skeletons(
     min_edges: int,
     girth5: bool,
     on_visit: Callable[[int], None] | None,
+    min_leaves: int = 0,
 ) -> list[tuple[int, ...]]:
-    import pynauty
-
+    nw = _nw()
     dmax = caps[0] if caps else 0
     if n == 1:
         return [(0,)]
@@ -257,6 +395,8 @@ def _skeletons(
                     nd = [a.bit_count() for a in new]
                     if not _fits(nd, caps):
                         continue
+                    if min_leaves and k + 1 >= 3 and nd.count(1) < min_leaves - rem_after:
+                        continue
                     inv_k = (s, sum(nd[v] for v in subset))
                     ok = True
                     ties: list[int] = []
@@ -283,13 +423,13 @@ def _skeletons(
                         continue
                     g = _nauty_graph(k + 1, new)
                     if ties:
-                        lab = pynauty.canon_label(g)
-                        orbits = pynauty.autgrp(g)[3]
+                        lab = nw.graph_canonlab(g)
+                        orbits = nw.graph_autgrp(g)[3]
                         pos = {v: i for i, v in enumerate(lab)}
                         w = max([*ties, k], key=pos.__getitem__)
                         if orbits[w] != orbits[k]:
                             continue
-                    cert = pynauty.certificate(g)
+                    cert = nw.graph_cert(g)
                     if cert in sib:
                         continue
                     sib.add(cert)

@@ -1,0 +1,152 @@
+"""Speed of the structure generator (prints figures; not collected by pytest).
+
+Run from the repository root::
+
+    python tests/benchmarks/bench_generate.py            # everything (a few minutes)
+    python tests/benchmarks/bench_generate.py --quick    # skip the SMILES runs of the two largest
+
+Figures printed: wall time and structures per second for counting and for
+SMILES output; RDKit's own cost of writing the same SMILES (MolToSmiles on
+ready molecules) and the ratio; a solver-style constrained run; the test
+reference enumerator on C7H8 and the ratio; partial structures visited with
+and without constraints (pruning).
+"""
+
+from __future__ import annotations
+
+import argparse
+import re
+import sys
+import time
+from pathlib import Path
+
+ROOT = Path(__file__).resolve().parents[2]
+sys.path.insert(0, str(ROOT))
+sys.path.insert(0, str(ROOT / "tests"))
+
+from rdkit import Chem  # noqa: E402
+
+from elucidate.generate import AtomSpec, FragmentSpec, Spec, Stats, count, generate  # noqa: E402
+from elucidate.generate import isomers as _isomers  # noqa: E402
+from elucidate.model import Formula  # noqa: E402
+
+
+def F(text: str) -> Formula:
+    counts = {el: int(n) if n else 1 for el, n in re.findall(r"([A-Z][a-z]?)(\d*)", text)}
+    order = ["C", "H"] + sorted(el for el in counts if el not in ("C", "H"))
+    return Formula(tuple((el, counts[el]) for el in order if el in counts))
+
+
+def cold() -> None:
+    """Forget cached skeletons so each run pays for its own."""
+    _isomers._skeleton_list.cache_clear()
+
+
+def timed_count(spec: Spec) -> tuple[int, float, Stats]:
+    cold()
+    st = Stats()
+    t = time.perf_counter()
+    n = count(spec, stats=st)
+    return n, time.perf_counter() - t, st
+
+
+def timed_smiles(spec: Spec) -> tuple[list[str], float]:
+    cold()
+    t = time.perf_counter()
+    out = list(generate(spec))
+    return out, time.perf_counter() - t
+
+
+def rdkit_write_cost(smiles: list[str], sample: int = 20000) -> float:
+    """Seconds per molecule RDKit needs to write canonical SMILES of ready molecules."""
+    step = max(1, len(smiles) // sample)
+    mols = [Chem.MolFromSmiles(s) for s in smiles[::step]]
+    t = time.perf_counter()
+    for m in mols:
+        Chem.MolToSmiles(m)
+    return (time.perf_counter() - t) / len(mols)
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser()
+    ap.add_argument("--quick", action="store_true", help="skip SMILES output for C9H12O and C10H8")
+    args = ap.parse_args()
+    Chem.MolFromSmiles("C")  # import and warm RDKit outside the timings
+
+    print("formula    structures   count_s   struct/s | smiles_s  us/struct  rdkit_write_us  (smiles-count)/write")
+    for f in ["C10H22", "C7H8", "C8H10", "C7H6O", "C9H12O", "C10H8"]:
+        spec = Spec(F(f))
+        n, tc, _ = timed_count(spec)
+        line = f"{f:9s} {n:11d} {tc:9.3f} {n / tc:10.0f} |"
+        if args.quick and f in ("C9H12O", "C10H8"):
+            print(line + " (skipped with --quick)")
+            continue
+        out, ts = timed_smiles(spec)
+        assert len(out) == n
+        w = rdkit_write_cost(out)
+        extra = (ts - tc) / n
+        print(line + f" {ts:8.3f} {ts / n * 1e6:10.1f} {w * 1e6:15.1f} {extra / w:10.2f}")
+        sys.stdout.flush()
+
+    print()
+    print("solver-style: C9H10O2, monosubstituted benzene ring, H fixed per atom (CH2, CH3, C, O, O)")
+    atoms = (AtomSpec("C", 2), AtomSpec("C", 3), AtomSpec("C", 0), AtomSpec("O", 0), AtomSpec("O", 0))
+    spec = Spec(F("C9H10O2"), atoms=atoms, fragments=(FragmentSpec("*c1ccccc1"),))
+    out, ts = timed_smiles(spec)
+    st = Stats()
+    cold()
+    t = time.perf_counter()
+    n = count(spec, stats=st)
+    tc = time.perf_counter() - t
+    print(f"  {n} structures; count {tc:.4f} s, with SMILES {ts:.4f} s; visited {st.visited}")
+    spec2 = Spec(
+        F("C9H10O2"),
+        atoms=(
+            AtomSpec("C", 2, frozenset({3})),  # a CH2 quartet next to CH3
+            AtomSpec("C", 3, frozenset({2})),  # a CH3 triplet
+            AtomSpec("C", 0), AtomSpec("O", 0), AtomSpec("O", 0),
+        ),
+        fragments=(FragmentSpec("*c1ccccc1"),),
+    )
+    st2 = Stats()
+    cold()
+    t = time.perf_counter()
+    out2 = list(generate(spec2, stats=st2))
+    print(f"  + n+1 rules (CH2 q, CH3 t): {len(out2)} structures in {time.perf_counter() - t:.4f} s, "
+          f"visited {st2.visited}: {', '.join(out2)}")
+
+    print()
+    print("pruning (partial structures visited):")
+    for label, a, b in [
+        ("C9H10O2 fixed H (5 CH, 2 C, CH2, CH3, 2 O) vs phenyl fragment + the rest", Spec(F("C9H10O2"), atoms=(
+            *[AtomSpec("C", 1)] * 5, AtomSpec("C", 0), *atoms)), spec),
+        ("C7H14O2 plain vs fixed H + n+1 sets", Spec(F("C7H14O2")), Spec(F("C7H14O2"), atoms=(
+            AtomSpec("C", 2, frozenset({1})), AtomSpec("C", 2, frozenset({3})), AtomSpec("C", 1),
+            AtomSpec("C", 3, frozenset({2})), AtomSpec("C", 3, frozenset({1})),
+            AtomSpec("C", 3, frozenset({1})), AtomSpec("C", 0), AtomSpec("O", 0), AtomSpec("O", 0)))),
+        ("C7H14O2 fixed H without vs with n+1 sets", Spec(F("C7H14O2"), atoms=(
+            AtomSpec("C", 2), AtomSpec("C", 2), AtomSpec("C", 1), AtomSpec("C", 3), AtomSpec("C", 3),
+            AtomSpec("C", 3), AtomSpec("C", 0), AtomSpec("O", 0), AtomSpec("O", 0))), Spec(F("C7H14O2"), atoms=(
+            AtomSpec("C", 2, frozenset({1})), AtomSpec("C", 2, frozenset({3})), AtomSpec("C", 1),
+            AtomSpec("C", 3, frozenset({2})), AtomSpec("C", 3, frozenset({1})),
+            AtomSpec("C", 3, frozenset({1})), AtomSpec("C", 0), AtomSpec("O", 0), AtomSpec("O", 0)))),
+    ]:
+        na, ta, sa = timed_count(a)
+        nb, tb, sb = timed_count(b)
+        print(f"  {label}: {na} structures, visited {sa.visited}, colourings {sa.colourings}, {ta:.3f} s"
+              f"  ->  {nb} structures, visited {sb.visited}, colourings {sb.colourings}, {tb:.4f} s")
+
+    print()
+    from _reference_isomers import _reference_isomers
+
+    t = time.perf_counter()
+    ref = _reference_isomers(F("C7H8").as_dict())
+    tr = time.perf_counter() - t
+    out, ts = timed_smiles(Spec(F("C7H8")))
+    same = set(out) == ref
+    print(f"reference enumerator C7H8: {len(ref)} structures in {tr:.3f} s; generator (SMILES) {ts:.3f} s; "
+          f"ratio {tr / ts:.1f}x; same set: {same}")
+
+
+if __name__ == "__main__":
+    main()

@@ -28,10 +28,10 @@ import functools
 import math
 import time
 from dataclasses import dataclass, field
-from typing import Any, Iterator
+from typing import Any
 
 from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
-from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, neighbour_counts, proton_groups
+from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, proton_groups
 from elucidate.errors import InputError, LimitReached
 from elucidate.model import Candidate, Explanation, Prediction, Problem, Rejection, SolveResult
 from elucidate.score import reasons as rs

@@ -438,8 +438,8 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
     """Take a hard fragment's atoms out of a hypothesis (None if it cannot host it)."""
     groups = list(groups)
     bare = dict(bare)
-    nb: dict[int, frozenset[int]] = {}
     allowed = set(match.signals)
+    picked: dict[tuple[str, int], list[tuple[int, Group]]] = {}
     for idx, (el, h) in enumerate(fragment_atoms(match.rule.smiles)):
         if h == 0:
             if bare.get(el, 0) <= 0:
@@ -454,8 +454,17 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
         if pick is None:
             return None
         groups.remove(pick)
-        if pick.neighbour_h is not None:
-            nb[idx] = pick.neighbour_h
+        picked.setdefault((el, h), []).append((idx, pick))
+    # Which fragment atom stands for which signal is not known (ortho vs para
+    # H of a phenyl), so atoms of one (element, H) class share the union of
+    # their groups' neighbour rules — or get none if any group has none.
+    nb: dict[int, frozenset[int]] = {}
+    for members in picked.values():
+        sets = [g.neighbour_h for _, g in members]
+        if all(x is not None for x in sets):
+            union = frozenset().union(*sets)
+            for idx, _ in members:
+                nb[idx] = union
     return groups, {k: v for k, v in bare.items() if v}, (match.rule.smiles, nb, match.rule.name)
 
 

@@ -28,10 +28,10 @@ import functools
 import math
 import time
 from dataclasses import dataclass, field
-from typing import Any, Callable, Iterator
+from typing import Any, Callable
 
 from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
-from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, neighbour_counts, proton_groups
+from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, proton_groups
 from elucidate.errors import InputError, LimitReached
 from elucidate.model import Candidate, Explanation, Prediction, Problem, Rejection, SolveResult
 from elucidate.score import reasons as rs
@@ -449,8 +449,8 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
     """Take a hard fragment's atoms out of a hypothesis (None if it cannot host it)."""
     groups = list(groups)
     bare = dict(bare)
-    nb: dict[int, frozenset[int]] = {}
     allowed = set(match.signals)
+    picked: dict[tuple[str, int], list[tuple[int, Group]]] = {}
     for idx, (el, h) in enumerate(fragment_atoms(match.rule.smiles)):
         if h == 0:
             if bare.get(el, 0) <= 0:
@@ -465,8 +465,17 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
         if pick is None:
             return None
         groups.remove(pick)
-        if pick.neighbour_h is not None:
-            nb[idx] = pick.neighbour_h
+        picked.setdefault((el, h), []).append((idx, pick))
+    # Which fragment atom stands for which signal is not known (ortho vs para
+    # H of a phenyl), so atoms of one (element, H) class share the union of
+    # their groups' neighbour rules — or get none if any group has none.
+    nb: dict[int, frozenset[int]] = {}
+    for members in picked.values():
+        sets = [g.neighbour_h for _, g in members]
+        if all(x is not None for x in sets):
+            union = frozenset().union(*sets)
+            for idx, _ in members:
+                nb[idx] = union
     return groups, {k: v for k, v in bare.items() if v}, (match.rule.smiles, nb, match.rule.name)
 
 

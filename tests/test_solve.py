@@ -114,3 +114,13 @@ def test_nitro_compound_found():
     h1 = "4.37 (t, J = 7.0 Hz, 2H), 2.03 (sext, J = 7.2 Hz, 2H), 1.03 (t, J = 7.4 Hz, 3H)"
     r = solve(load_problem(formula="C3H7NO2", h1=h1))
     assert r.candidates[0].smiles == "CCC[N+](=O)[O-]"
+
+
+def test_monosubstituted_benzene_fragment_keeps_the_truth():
+    # Methyl benzoate, CDCl3 (from memory): ortho, meta and para H have
+    # different neighbour rules; placing the phenyl super-atom must not pin
+    # a signal's rule on the wrong ring position.
+    h1 = "8.04 (d, J = 7.6 Hz, 2H), 7.55 (t, J = 7.4 Hz, 1H), 7.43 (t, J = 7.6 Hz, 2H), 3.91 (s, 3H)"
+    r = solve(load_problem(formula="C8H8O2", h1=h1))
+    assert r.candidates[0].smiles == "COC(=O)c1ccccc1"
+    assert r.complete and not r.relaxed

@@ -51,6 +51,10 @@ class Weights:
     not_observed: float = 0.3
     integral_per_h: float = 1.5
     min_uncertainty: float = 0.1
+    # likelihood normalisation: a vague prediction (coarse fallback) must not
+    # fit better than a sharp one just by being vague; ln(u / u_ref) per
+    # non-exchangeable environment, never negative
+    vague_reference: float = 0.3
     # verdicts
     consistent_z: float = 3.0  # every shift within this many typical errors
     consistent_mult_steps: int = 1
@@ -166,6 +170,14 @@ def _apart(smiles: str, atoms: tuple[int, ...]) -> bool:
     return False
 
 
+def _vagueness(envs: tuple[Environment, ...], w: Weights) -> float:
+    return sum(
+        max(0.0, math.log(max(e.uncertainty, w.min_uncertainty) / w.vague_reference))
+        for e in envs
+        if not e.exchangeable
+    )
+
+
 def _splittable(env: Environment, smiles: str = "") -> bool:
     return _units(env, smiles)[1] > 1
 
@@ -217,7 +229,7 @@ def quick_bound(problem: Problem, prediction: Prediction, weights: Weights = Wei
         if e.exchangeable:
             best = min(best, weights.not_observed)
         bound += best
-    return bound + carbon_cost(problem, prediction, weights)[0], None
+    return bound + _vagueness(envs, weights) + carbon_cost(problem, prediction, weights)[0], None
 
 
 # ----------------------------------------------------------- full model
@@ -403,7 +415,10 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
             notes.append(f"{rs.describe_signal(s)} receives {got}H")
     carbon, carbon_notes, carbon_bad = carbon_cost(problem, prediction, w)
     notes += carbon_notes
-    cost = solver.objective_value / _SCALE + carbon
+    vague = _vagueness(envs, w)
+    if vague > 0.5:
+        notes.append(f"coarse prediction for some H (vagueness cost {vague:.2f})")
+    cost = solver.objective_value / _SCALE + carbon + vague
     consistent = worst_z <= w.consistent_z and worst_steps <= w.consistent_mult_steps and not carbon_bad
     assignments.sort(key=lambda a: (a.signal if a.signal is not None else 10**6, a.environment))
     return Fit(

@@ -24,7 +24,6 @@ How the pieces fit (see docs/solve-dev.md):
 
 from __future__ import annotations
 
-import functools
 import math
 import time
 from dataclasses import dataclass, field
@@ -255,12 +254,12 @@ def _solve(
         run.levels_run.append(li)
         specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
-        for spec, post in specs:
-            key = (_spec_key(spec), post)
+        for spec in specs:
+            key = _spec_key(spec)
             if key in prev_specs:
                 continue
             prev_specs.add(key)
-            _consume(run, spec, li, level, post)
+            _consume(run, spec, li, level)
             if run.stopped_by:
                 break
         _score_pool(run, matches, hard if not level.hard_fragments else [])
@@ -299,11 +298,8 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
                 if carved is None:
                     ok = False
                     break
-                if _generator_takes_fragments():
-                    groups, bare, frag = carved
-                    frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
-                else:
-                    require.append(_fragment_smarts(match.rule.smiles))
+                groups, bare, frag = carved
+                frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
         if not ok:
             continue
         atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
@@ -314,89 +310,8 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
         if key in seen:
             continue
         seen.add(key)
-        nitro = _nitro_spec(problem, atoms, frags, require)
-        if nitro is not None:
-            specs.append(nitro)  # first: fewer atoms, so a quick run
-        specs.append((spec, None))
+        specs.append(spec)
     return specs, hset.complete
-
-
-_PLACEHOLDERS = ("I", "Br", "Cl", "F")
-
-
-@dataclass(frozen=True)
-class _NitroPost:
-    """How to turn a placeholder structure back into a nitro compound."""
-
-    placeholder: str
-    require: tuple[str, ...]
-    forbid: tuple[str, ...]
-
-
-def _nitro_spec(problem: Problem, atoms: list, frags: list, require: list) -> tuple[Any, _NitroPost] | None:
-    """A spec with one NO2 group stood in for by a monovalent placeholder
-    atom, while the generator cannot make charge-separated N in atom mode."""
-    from elucidate.generate import AtomSpec, Spec
-    from elucidate.model import ELEMENTS, Formula
-
-    f = problem.formula
-    if f["N"] < 1 or f["O"] < 2 or _generator_nitro_with_atoms():
-        return None
-    free = next((x for x in _PLACEHOLDERS if f[x] == 0), None)
-    bare = [a for a in atoms if a.h_count == 0 and a.neighbour_h is None]
-    n_bare = [a for a in bare if a.element == "N"]
-    o_bare = [a for a in bare if a.element == "O"]
-    if free is None or not n_bare or len(o_bare) < 2:
-        return None
-    rest = list(atoms)
-    for a in (n_bare[0], o_bare[0], o_bare[1]):
-        rest.remove(a)
-    rest.append(AtomSpec(free, 0, None, "NO2 placeholder"))
-    counts = f.as_dict()
-    counts["N"] -= 1
-    counts["O"] -= 2
-    counts[free] = 1
-    formula = Formula(tuple((el, counts[el]) for el in ELEMENTS if counts.get(el)))
-    spec = Spec(formula, tuple(rest), tuple(frags), (), (), _options(problem))
-    return spec, _NitroPost(free, tuple(require), tuple(problem.forbid))
-
-
-@functools.cache
-def _generator_nitro_with_atoms() -> bool:
-    """Whether the generator makes nitro groups from fixed atoms itself."""
-    from elucidate.generate import AtomSpec, Options, Spec, generate
-    from elucidate.model import Formula
-
-    f = Formula((("C", 1), ("H", 3), ("N", 1), ("O", 2)))
-    atoms = (AtomSpec("C", 3), AtomSpec("N", 0), AtomSpec("O", 0), AtomSpec("O", 0))
-    return "C[N+](=O)[O-]" in set(generate(Spec(f, atoms, options=Options(charge_separated=True))))
-
-
-def _from_placeholder(smiles: str, post: _NitroPost) -> str | None:
-    """Placeholder structure -> nitro compound (None if it fails the
-    required/forbidden substructures)."""
-    from rdkit import Chem
-
-    mol = Chem.RWMol(Chem.MolFromSmiles(smiles))
-    x = next(a.GetIdx() for a in mol.GetAtoms() if a.GetSymbol() == post.placeholder)
-    atom = mol.GetAtomWithIdx(x)
-    atom.SetAtomicNum(7)
-    atom.SetFormalCharge(1)
-    atom.SetNoImplicit(True)
-    o1 = mol.AddAtom(Chem.Atom(8))
-    o2 = mol.AddAtom(Chem.Atom(8))
-    mol.GetAtomWithIdx(o2).SetFormalCharge(-1)
-    mol.AddBond(x, o1, Chem.BondType.DOUBLE)
-    mol.AddBond(x, o2, Chem.BondType.SINGLE)
-    Chem.SanitizeMol(mol)
-    out = mol.GetMol()
-    for sm in post.require:
-        if not out.HasSubstructMatch(Chem.MolFromSmarts(sm)):
-            return None
-    for sm in post.forbid:
-        if out.HasSubstructMatch(Chem.MolFromSmarts(sm)):
-            return None
-    return Chem.MolToSmiles(out)
 
 
 def _options(problem: Problem) -> Any:
@@ -410,26 +325,6 @@ def _options(problem: Problem) -> Any:
         pentavalent_p=f["P"] > 0,
         charge_separated=f["N"] > 0 and f["O"] >= 2,
     )
-
-
-@functools.cache
-def _generator_takes_fragments() -> bool:
-    """Whether the generator places fragments as super-atoms (else hard
-    fragments go in as required substructures, with the same result)."""
-    from elucidate.generate import AtomSpec, FragmentSpec, Spec, generate
-    from elucidate.model import Formula
-
-    spec = Spec(Formula((("C", 2), ("H", 6))), (AtomSpec("C", 3),), (FragmentSpec("*C"),))
-    try:
-        return list(generate(spec)) == ["CC"]
-    except InputError:
-        return False
-
-
-def _fragment_smarts(smiles: str) -> str:
-    from rdkit import Chem
-
-    return Chem.MolToSmarts(_fragment_query(smiles))
 
 
 def _label(g: Group, problem: Problem) -> str:
@@ -485,7 +380,7 @@ def _remaining(run: _Run) -> tuple[float | None, int | None]:
     return t, n
 
 
-def _consume(run: _Run, spec: Any, level_index: int, level: Level, post: _NitroPost | None = None) -> None:
+def _consume(run: _Run, spec: Any, level_index: int, level: Level) -> None:
     from elucidate.generate import Limits, Stats, generate
 
     t, n = _remaining(run)
@@ -503,10 +398,6 @@ def _consume(run: _Run, spec: Any, level_index: int, level: Level, post: _NitroP
             run.generated += 1
             if run.progress is not None:
                 run.progress("building structures", run.generated, None)
-            if post is not None:
-                smi = _from_placeholder(smi, post)
-                if smi is None:
-                    continue
             if smi in run.entries or smi in run.rejected:
                 continue
             _add(run, smi, level_index)

@@ -2,7 +2,7 @@
 
 The observed spectra are literature values; the predictions are worked by
 hand from the additive sp3 C–H increments in
-/work/shared/reference/trade-facts.md (base CH3 0.9, CH2 1.2; α/β increments
+the design notes' list of check values (shared/reference/trade-facts.md) (base CH3 0.9, CH2 1.2; α/β increments
 as listed there), the way the predict stage derives them.  They stand in for
 the solver's output so the report can be built and tested on its own.
 """

@@ -1,6 +1,6 @@
 """Tests of the structure generator against published counts and a reference enumerator.
 
-Check values: /work/shared/reference/trade-facts.md ("Isomer counts").
+Check values: the design notes' list of check values (shared/reference/trade-facts.md) ("Isomer counts").
 """
 
 from __future__ import annotations

@@ -1,6 +1,6 @@
 """The largest check values; run with ELUCIDATE_SLOW=1 (about a minute).
 
-Counts from /work/shared/reference/trade-facts.md, "counted by one fast method
+Counts from the design notes' list of check values (shared/reference/trade-facts.md), "counted by one fast method
 only": this generator is the second, independent method that agrees.
 """
 

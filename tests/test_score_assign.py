@@ -1,7 +1,7 @@
 """score: quick bound, CP-SAT assignment, integral cores and reasons.
 
 Predictions here are built by hand from the additive increments of
-/work/shared/reference/trade-facts.md (sp3 C-H base CH3 0.9, CH2 1.2 plus
+the design notes' list of check values (shared/reference/trade-facts.md) (sp3 C-H base CH3 0.9, CH2 1.2 plus
 alpha/beta increments: OC(=O)R 2.8/0.5, COOR 1.1/0.3, OR 2.1/0.3), so the
 tests do not depend on the predict stage.
 """

@@ -13,7 +13,6 @@ from __future__ import annotations
 
 import functools
 import time
-from dataclasses import replace
 from itertools import product
 from typing import Iterator
 
@@ -439,4 +438,3 @@ def parts_smiles(args: tuple[Spec, Limits | None, tuple[int, int]]) -> tuple[lis
     return out, st
 
 
-_ = replace  # kept for callers building variants of a spec

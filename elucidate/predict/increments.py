@@ -18,8 +18,8 @@ used and the derivation says so.
 
 References
 ----------
-.. [1] J. N. Shoolery, Varian Associates Technical Information Bulletin,
-   1959; the σ values as tabulated in spectroscopy handbooks.
+.. [1] J. N. Shoolery, technical information bulletin, 1959; the σ values
+   as tabulated in spectroscopy handbooks.
 .. [2] C. Pascual, J. Meier, W. Simon, Helv. Chim. Acta 1966, 49, 164.
 .. [3] J. Beeby, S. Sternhell, T. Hoffmann-Ostenhof, E. Pretsch, W. Simon,
    Anal. Chem. 1973, 45, 1571.

@@ -109,7 +109,8 @@ class Formula(_JsonMixin):
         return self.dou_twice / 2
 
     def to_json(self) -> dict[str, Any]:
-        return {"formula": self.hill, "elements": self.as_dict(), "dou": self.dou}
+        dou = self.dou_twice // 2 if self.dou_twice % 2 == 0 else self.dou
+        return {"formula": self.hill, "elements": self.as_dict(), "dou": dou}
 
 
 _MULT_WORDS = {"quint": 5, "sext": 6, "sept": 7}

@@ -276,7 +276,7 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
 
     if level.margin is None:
         spec = Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem))
-        return [(spec, None)], True
+        return [spec], True
     if level.margin not in cache:
         cache[level.margin] = proton_groups(problem, margin=level.margin)
         for w in cache[level.margin].warnings:

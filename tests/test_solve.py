@@ -124,3 +124,16 @@ def test_monosubstituted_benzene_fragment_keeps_the_truth():
     r = solve(load_problem(formula="C8H8O2", h1=h1))
     assert r.candidates[0].smiles == "COC(=O)c1ccccc1"
     assert r.complete and not r.relaxed
+
+
+def test_relaxation_reaches_the_formula_alone():
+    # A 6H triplet at 9.5 ppm fits no reading of C2H6O (CH3 cannot sit near
+    # 9.5 ppm, common practice), so every rule is relaxed in turn and the
+    # last step considers every isomer of the formula (2 for C2H6O,
+    # independent exhaustive count in the design notes' list of check values).
+    from elucidate.parse import load_problem
+
+    problem = load_problem(formula="C2H6O", h1="9.50 (t, 6H)")
+    result = solve(problem)
+    assert any("every isomer of the formula" in step for step in result.relaxed)
+    assert sorted(c.smiles for c in result.candidates) == ["CCO", "COC"]

@@ -57,6 +57,7 @@ class Weights:
     vague_reference: float = 0.3
     # verdicts
     consistent_z: float = 3.0  # every shift within this many typical errors
+    consistent_max_ppm: float = 3.0  # ... and within this many ppm, however vague the prediction
     consistent_mult_steps: int = 1
     carbon_missing: float = 2.0
     carbon_shift: float = 1.0  # weight of the mean 13C z-score
@@ -377,7 +378,7 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
 
     assignments: list[Assignment] = []
     notes: list[str] = []
-    worst_z = 0.0
+    worst_z = worst_ppm = 0.0
     worst_steps = 0
     for ei, e in enumerate(envs):
         placed = [(i, solver.value(units[ei, i])) for i in range(n_s) if (ei, i) in units]
@@ -395,11 +396,12 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
             z = abs(dev) / u
             shape, steps = _mult_steps(e, s)
             worst_z = max(worst_z, z)
+            worst_ppm = max(worst_ppm, abs(dev))
             worst_steps = max(worst_steps, steps)
             h = per_unit * k
             assignments.append(Assignment(ei, i, h, e.shift, s.shift, round(e.shift - s.shift, 4),
                                           e.multiplicity, s.multiplicity, round(pair_cost[ei, i], 4)))
-            if z > w.consistent_z:
+            if z > w.consistent_z or abs(dev) > w.consistent_max_ppm:
                 notes.append(rs.shift_note(e, s, round(s.h_count), dev))
             if steps > w.consistent_mult_steps - 1 and steps:
                 notes.append(rs.multiplicity_note(e, s, round(s.h_count)))
@@ -419,7 +421,7 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
     if vague > 0.5:
         notes.append(f"coarse prediction for some H (vagueness cost {vague:.2f})")
     cost = solver.objective_value / _SCALE + carbon + vague
-    consistent = worst_z <= w.consistent_z and worst_steps <= w.consistent_mult_steps and not carbon_bad
+    consistent = worst_z <= w.consistent_z and worst_ppm <= w.consistent_max_ppm and worst_steps <= w.consistent_mult_steps and not carbon_bad
     assignments.sort(key=lambda a: (a.signal if a.signal is not None else 10**6, a.environment))
     return Fit(
         True,

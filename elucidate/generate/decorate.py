@@ -593,6 +593,10 @@ def _tokens(lab: Label) -> tuple[str, ...]:
     return tuple(_atom_token(lab.symbol, h, lab.charge) for h in range(9))
 
 
+# one-slot cache: (labels tuple, per-vertex (token table, valence))
+_LAST_LABELS: list = [None, None]  # type: ignore[type-arg]
+
+
 def structure_smiles(st: Structure) -> str:
     """RDKit canonical SMILES (aromatic form) of a structure.
 
@@ -608,7 +612,15 @@ def structure_smiles(st: Structure) -> str:
         return Chem.MolToSmiles(structure_mol(st))
     fmt, getter = sk.smiles_writer
     labels = st.labels
-    combined = [_tokens(lab)[h] for lab, h in zip(labels, st.hs())]
+    if _LAST_LABELS[0] is not labels:
+        # structures of one colouring share their labels tuple: hash labels once
+        _LAST_LABELS[0] = labels
+        _LAST_LABELS[1] = [(_tokens(lab), lab.valence) for lab in labels]
+    bs = [0] * len(labels)
+    for (u, v), o in zip(st.edges, st.orders):
+        bs[u] += o
+        bs[v] += o
+    combined = [tok[val - s] for (tok, val), s in zip(_LAST_LABELS[1], bs)]
     combined += [_BOND_SYMBOL[o] for o in st.orders]
     vals = getter(combined)
     m = Chem.MolFromSmiles(fmt % vals, sanitize=False)

@@ -385,84 +385,29 @@ def _check_output(path: Path | None, option: str) -> None:
         raise InputError(f"{option} {path}: directory '{parent}' does not exist")
 
 
-def _readback(problem: Any) -> str:
-    from elucidate.parse.readback import readback_text
-
-    text = readback_text(problem).rstrip()
-    if text.endswith(CAUTION):
-        text = text[: -len(CAUTION)].rstrip()
-    return text
-
-
-def _fmt_assignments(candidate: Any, problem: Any) -> list[str]:
-    lines = ["    signal            env  nH  predicted  mult (pred/obs)  cost"]
-    for a in candidate.assignments:
-        if a.signal is None:
-            where = "not observed"
-        else:
-            s = problem.h1[a.signal]
-            where = f"#{a.signal + 1} {s.shift:6.2f}"
-        obs_mult = a.multiplicity_observed or "-"
-        lines.append(
-            f"    {where:<17} {a.environment:>3}  {a.h_count:>2}  {a.predicted:9.2f}  "
-            f"{a.multiplicity_predicted + '/' + obs_mult:<15}  {a.cost:.2f}"
-        )
-    return lines
-
-
-def solve_text(result: Any, *, details: int = 3) -> str:
-    """Plain-text report of a :class:`SolveResult` (read-back, ranked table,
-    rejection summary, caution)."""
-    lines = [_readback(result.problem), ""]
-    if not result.complete:
-        lines += ["!" * 72, "! INCOMPLETE SEARCH: " + (result.stopped_by or "hypotheses capped")
-                  + " — best so far shown; the answer may be missing.", "!" * 72, ""]
-    for r in result.relaxed:
-        lines.append(f"Relaxed      {r}")
-    if result.relaxed:
-        lines.append("")
-    counts = dict(result.counts)
-    lines.append(
-        f"Searched     {counts.get('unique', 0)} structures ({counts.get('rejected', 0)} rejected, "
-        f"{counts.get('ranked', 0)} ranked) from {counts.get('generator_runs', 0)} generator runs; "
-        f"complete: {'yes' if result.complete else 'NO'}"
-    )
-    lines.append("")
-    if not result.candidates:
-        lines.append("No candidate fits the data.")
+def _deliver(
+    outcome: Any,
+    report: Path | None,
+    sdf: Path | None,
+    json_out: bool,
+    write_html: Callable[[Any, Path], None],
+    write_sdf: Callable[[Any, Path], None],
+    render: Callable[[Any], None],
+) -> None:
+    """Write the requested files, then JSON or the terminal view of a solve
+    result or an explanation."""
+    if report is not None:
+        write_html(outcome, report)
+        typer.echo(f"wrote {report}", err=True)
+    if sdf is not None:
+        write_sdf(outcome, sdf)
+        typer.echo(f"wrote {sdf}", err=True)
+    if json_out:
+        doc = outcome.to_json()
+        doc["caution"] = CAUTION
+        emit_json(doc)
     else:
-        lines.append(" rank  score   verdict      SMILES")
-        for c in result.candidates:
-            lines.append(f" {c.rank:>4}  {c.score:6.2f}  {c.verdict:<11}  {c.smiles}")
-        for c in result.candidates[:details]:
-            lines += ["", f"  #{c.rank} {c.smiles}"]
-            lines += _fmt_assignments(c, result.problem)
-            lines += [f"    note: {n}" for n in c.notes]
-    if result.rejected_counts:
-        lines += ["", "Rejected (count  reason)"]
-        lines += [f"  {n:>5}  {reason}" for reason, n in result.rejected_counts]
-    lines += ["", CAUTION]
-    return "\n".join(lines)
-
-
-def explain_text(explanation: Any) -> str:
-    """Plain-text report of an :class:`Explanation`."""
-    e = explanation
-    lines = [_readback(e.problem), "", f"Structure    {e.smiles}", f"Verdict      {e.verdict}"]
-    if e.rank is not None:
-        lines.append(f"Rank         {e.rank} of {e.total} candidates")
-    else:
-        lines.append(f"Rank         not among the {e.total} candidates generated under the hard constraints")
-    if not e.complete:
-        lines.append("!! INCOMPLETE SEARCH: the rank is among the structures seen")
-    if e.candidate is not None:
-        lines += ["", f"Score        {e.candidate.score:.2f}"]
-        lines += _fmt_assignments(e.candidate, e.problem)
-    if e.reasons:
-        lines += ["", "Reasons"]
-        lines += [f"  - {r}" for r in e.reasons]
-    lines += ["", CAUTION]
-    return "\n".join(lines)
+        render(outcome)
 
 
 def _load(case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any) -> Any:
@@ -512,18 +457,7 @@ def solve_command(
         )
     if not result.complete:
         warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
-    if report is not None:
-        write_html(result, report)
-        typer.echo(f"wrote {report}", err=True)
-    if sdf is not None:
-        write_sdf(result, sdf)
-        typer.echo(f"wrote {sdf}", err=True)
-    if json_out:
-        doc = result.to_json()
-        doc["caution"] = CAUTION
-        emit_json(doc)
-    else:
-        render_solve(result)
+    _deliver(result, report, sdf, json_out, write_html, write_sdf, render_solve)
 
 
 @app.command("explain")
@@ -568,18 +502,7 @@ def explain_command(
         explanation = explain(
             problem, smiles, time_limit_s=time_limit, max_structures=max_structures, progress=progress
         )
-    if report is not None:
-        write_explain_html(explanation, report)
-        typer.echo(f"wrote {report}", err=True)
-    if sdf is not None:
-        write_explain_sdf(explanation, sdf)
-        typer.echo(f"wrote {sdf}", err=True)
-    if json_out:
-        doc = explanation.to_json()
-        doc["caution"] = CAUTION
-        emit_json(doc)
-    else:
-        render_explain(explanation)
+    _deliver(explanation, report, sdf, json_out, write_explain_html, write_explain_sdf, render_explain)
 
 
 

@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections.abc import Iterable
 from dataclasses import replace
 from math import comb
+from pathlib import Path
 
 from elucidate.model import (
     Assignment,
@@ -22,6 +23,7 @@ from elucidate.model import (
 )
 
 __all__ = [
+    "write_text",
     "PALETTE",
     "UNASSIGNED_COLOUR",
     "signal_letter",
@@ -246,3 +248,16 @@ def predicted_lines(environment: Environment) -> list[tuple[float, float]] | Non
         return None
     return multiplet_lines((c.h_count, c.j_hz) for c in environment.couplings)
 
+
+
+def write_text(target: Path, text: str, option: str) -> Path:
+    """Write a report file; an :class:`InputError` naming ``option`` and the
+    path if it cannot be written."""
+    from elucidate.errors import InputError
+
+    try:
+        with open(target, "w", encoding="utf-8", newline="\n") as fh:
+            fh.write(text)
+    except OSError as err:
+        raise InputError(f"{option} {target}: cannot write the file ({err.strerror})") from err
+    return target

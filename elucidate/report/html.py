@@ -27,6 +27,7 @@ from elucidate import CAUTION, __version__
 from elucidate.errors import InputError
 from elucidate.model import Assignment, Candidate, Environment, H1Signal, Problem, Rejection, SolveResult
 from elucidate.report.common import (
+    write_text,
     UNASSIGNED_COLOUR,
     environment_by_index,
     fmt_count,
@@ -82,7 +83,7 @@ def write_html(result: SolveResult, path: str | Path, *, title: str | None = Non
     """
     if not isinstance(result, SolveResult):
         raise TypeError(f"expected a SolveResult, got {type(result).__name__}")
-    return _write(Path(path), render_html(result, title=title, top=top))
+    return write_text(Path(path), render_html(result, title=title, top=top), "--report")
 
 
 def render_html(result: SolveResult, *, title: str | None = None, top: int | None = None) -> str:
@@ -135,16 +136,9 @@ def render_explain_html(explanation: Any, problem: Problem | None = None, *, tit
 
 def write_explain_html(explanation: Any, path: str | Path, problem: Problem | None = None, *, title: str | None = None) -> Path:
     """Write :func:`render_explain_html` to ``path``; :class:`InputError` if it cannot."""
-    return _write(Path(path), render_explain_html(explanation, problem, title=title))
+    return write_text(Path(path), render_explain_html(explanation, problem, title=title), "--report")
 
 
-def _write(target: Path, text: str) -> Path:
-    try:
-        with open(target, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-    except OSError as err:
-        raise InputError(f"--report {target}: cannot write the file ({err.strerror})") from err
-    return target
 
 
 # ------------------------------------------------------------------ page

@@ -18,7 +18,7 @@ from typing import Any
 from elucidate import CAUTION
 from elucidate.errors import InputError
 from elucidate.model import Candidate, Problem, SolveResult
-from elucidate.report.common import fmt_ppm, largest_deviation, signal_letter, table_rows
+from elucidate.report.common import fmt_ppm, largest_deviation, signal_letter, table_rows, write_text
 
 __all__ = ["write_sdf", "sdf_text", "deviation_lines", "explain_sdf_text", "write_explain_sdf"]
 
@@ -135,16 +135,9 @@ def explain_sdf_text(explanation: Any) -> str:
 
 def write_explain_sdf(explanation: Any, path: str | Path) -> Path:
     """Write :func:`explain_sdf_text` to ``path``; :class:`InputError` if it cannot."""
-    return _write(Path(path), explain_sdf_text(explanation))
+    return write_text(Path(path), explain_sdf_text(explanation), "--sdf")
 
 
-def _write(target: Path, text: str) -> Path:
-    try:
-        with open(target, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-    except OSError as err:
-        raise InputError(f"--sdf {target}: cannot write the file ({err.strerror})") from err
-    return target
 
 
 def write_sdf(result: SolveResult, path: str | Path, *, top: int | None = None) -> Path:
@@ -155,4 +148,4 @@ def write_sdf(result: SolveResult, path: str | Path, *, top: int | None = None) 
     InputError
         If the file cannot be written.
     """
-    return _write(Path(path), sdf_text(result, top=top))
+    return write_text(Path(path), sdf_text(result, top=top), "--sdf")

@@ -29,6 +29,7 @@ import time
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from elucidate.constrain.evidence import Evidence, Graph, read_evidence
 from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
 from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, proton_groups
 from elucidate.errors import InputError, LimitReached
@@ -45,6 +46,8 @@ FULL_MODEL_MIN = 300
 FORMULA_ONLY_CAP = 20000
 #: Rejection examples kept in the result (all are counted).
 REJECTION_EXAMPLES = 25
+#: Hypotheses left unsearched that an incomplete result names (all are counted).
+NOT_SEARCHED_SHOWN = 8
 #: Narrow and wide plausibility margins for the H-distribution hypotheses.
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
@@ -59,26 +62,64 @@ class Level:
     margin: int | None  # hypothesis margin; None = formula only
     neighbour_rules: bool
     hard_fragments: bool
+    min_tier: int = 1  # evidence (constrain.evidence) of this tier or higher stays hard
+
+    def in_force(self, evidence: tuple[Evidence, ...]) -> tuple[Evidence, ...]:
+        """The evidence that stays a hard constraint at this level."""
+        return tuple(e for e in evidence if e.tier >= self.min_tier)
 
 
 LEVELS: tuple[Level, ...] = (
-    Level("strict", "", MARGIN_STRICT, True, True),
+    Level("strict", "", MARGIN_STRICT, True, True, 1),
+    Level("no-shift-rules", "turned into scores only", MARGIN_STRICT, True, True, 2),
     Level(
         "no-fragments",
         "hard fragment rules turned into soft ones and less likely H-count readings admitted",
-        MARGIN_WIDE, True, False,
+        MARGIN_WIDE, True, False, 3,
     ),
     Level(
         "no-multiplicity",
         "multiplicity (n+1 neighbour-H) rules dropped; multiplicities only score",
-        MARGIN_WIDE, False, False,
+        MARGIN_WIDE, False, False, 3,
     ),
     Level(
         "formula-only",
         "H-count readings of the peak list dropped: every isomer of the formula considered",
-        None, False, False,
+        None, False, False, 3,
     ),
 )
+
+
+def _relaxation(prev: Level, level: Level, evidence: tuple[Evidence, ...]) -> str | None:
+    """The sentence listed when ``level`` follows ``prev`` (None: the level
+    changes nothing and is skipped)."""
+    dropped = [e.relaxation for e in prev.in_force(evidence) if e not in level.in_force(evidence)]
+    same_rest = (prev.margin, prev.neighbour_rules, prev.hard_fragments) == (
+        level.margin, level.neighbour_rules, level.hard_fragments)
+    if same_rest and not dropped:
+        return None
+    if same_rest:
+        return ", ".join(dropped) + " " + level.relaxation
+    if dropped:
+        return level.relaxation + "; dropped as hard rules: " + ", ".join(dropped)
+    return level.relaxation
+
+
+@dataclass(frozen=True)
+class _Tallied:
+    """An evidence constraint handed to the generator, counting what it turns down."""
+
+    evidence: Evidence
+    tally: dict = field(default_factory=dict, compare=False, hash=False)
+
+    def min_unsaturated_carbons(self, formula: Any) -> int:
+        return self.evidence.min_unsaturated_carbons(formula)
+
+    def admits_structure(self, st: Any) -> bool:
+        if self.evidence.admits_structure(st):
+            return True
+        self.tally[self.evidence.key] = self.tally.get(self.evidence.key, 0) + 1
+        return False
 
 
 @dataclass
@@ -113,6 +154,9 @@ class _Run:
     levels_run: list[int] = field(default_factory=list)
     full_models: int = 0
     progress: Callable[[str, int, int | None], None] | None = None
+    evidence: tuple[Evidence, ...] = ()
+    tally: dict[str, int] = field(default_factory=dict)  # evidence key -> structures turned down
+    not_searched: list[str] = field(default_factory=list)
 
 
 # ------------------------------------------------------------------ public
@@ -244,24 +288,36 @@ def _solve(
     run.warnings.extend(problem.warnings)
     matches = match_fragments(problem)
     hard = [m for m in matches if m.rule.strength == "hard"]
-    hyp_cache: dict[int, HypothesisSet] = {}
+    run.evidence = read_evidence(problem)
+    hyp_cache: dict[tuple, HypothesisSet] = {}
     prev_specs: set = set()
+    prev_level: Level | None = None
     for li, level in enumerate(LEVELS):
-        if li > 0:
+        if prev_level is not None:
+            sentence = _relaxation(prev_level, level, run.evidence)
+            if sentence is None:
+                continue
             if _has_consistent(run) or run.stopped_by:
+                if run.stopped_by:
+                    run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
+                    continue
                 break
-            run.relaxed.append(level.relaxation)
+            run.relaxed.append(sentence)
+        prev_level = level
         run.levels_run.append(li)
         specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
-        for spec in specs:
+        for k, (spec, label) in enumerate(specs):
+            if run.stopped_by:
+                run.not_searched.append(f"{label} (level '{level.name}')")
+                continue
             key = _spec_key(spec)
             if key in prev_specs:
                 continue
             prev_specs.add(key)
             _consume(run, spec, li, level)
             if run.stopped_by:
-                break
+                run.not_searched.append(f"{label} (level '{level.name}', stopped part-way)")
         _score_pool(run, matches, hard if not level.hard_fragments else [])
     ranked = _ranked(run)
     return run, ranked
@@ -274,15 +330,23 @@ def _has_consistent(run: _Run) -> bool:
 def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run) -> tuple[list, bool]:
     from elucidate.generate import AtomSpec, FragmentSpec, Spec
 
+    evidence = level.in_force(run.evidence)
+    checks = tuple(_Tallied(e, run.tally) for e in evidence)
     if level.margin is None:
-        spec = Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem))
-        return [spec], True
-    if level.margin not in cache:
-        cache[level.margin] = proton_groups(problem, margin=level.margin)
-        for w in cache[level.margin].warnings:
+        spec = Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem), checks)
+        return [(spec, "every isomer of the formula")], True
+    bounds: dict[int, tuple[int, int]] = {}
+    for e in evidence:
+        for h, (lo, hi) in (e.group_bounds() or {}).items():
+            old = bounds.get(h, (0, problem.formula["C"]))
+            bounds[h] = (max(old[0], lo), min(old[1], hi))
+    ckey = (level.margin, tuple(sorted(bounds.items())))
+    if ckey not in cache:
+        cache[ckey] = proton_groups(problem, margin=level.margin, carbon_h=bounds)
+        for w in cache[ckey].warnings:
             if w not in run.warnings:
                 run.warnings.append(w)
-    hset: HypothesisSet = cache[level.margin]
+    hset: HypothesisSet = cache[ckey]
     specs = []
     seen = set()
     for hyp in hset.hypotheses:
@@ -305,12 +369,15 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
         atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
         atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
         spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(require), tuple(problem.forbid),
-                    _options(problem))
+                    _options(problem), checks)
         key = _spec_key(spec)
         if key in seen:
             continue
         seen.add(key)
-        specs.append(spec)
+        label = "H-count reading: " + h.describe()
+        if frags:
+            label += " with " + ", ".join(f.label or f.smiles for f in frags)
+        specs.append((spec, label))
     return specs, hset.complete
 
 
@@ -337,7 +404,8 @@ def _spec_key(spec: Any) -> tuple:
         sorted((a.element, a.h_count, tuple(sorted(a.neighbour_h)) if a.neighbour_h is not None else ()) for a in spec.atoms)
     )
     frags = tuple(sorted((f.smiles, tuple(sorted((k, tuple(sorted(v))) for k, v in f.neighbour_h.items()))) for f in spec.fragments))
-    return atoms, frags
+    checks = tuple(sorted(repr(c.evidence) for c in spec.checks))
+    return atoms, frags, checks
 
 
 def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
@@ -457,6 +525,9 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
         kth = done[run.top - 1] if len(done) >= run.top else math.inf
         if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
             break  # bound-only: cannot enter the top `top`
+        if run.deadline is not None and time.monotonic() > run.deadline and k >= run.top:
+            run.stopped_by = run.stopped_by or "time limit"
+            break  # out of time: the rest keep their cheap bound
         if run.progress is not None:
             run.progress("scoring", k + 1, len(pending))
         fit = assign(run.problem, entry.prediction, weights=run.weights)
@@ -542,6 +613,9 @@ def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
     counts: dict[str, int] = {}
     for cat, _ in run.rejected.values():
         counts[cat] = counts.get(cat, 0) + 1
+    titles = {e.key: e.title for e in run.evidence}
+    for key, n in run.tally.items():
+        counts[f"{titles[key]} not met (turned down while building)"] = n
     rejected_counts = tuple(sorted(counts.items(), key=lambda kv: (-kv[1], kv[0])))
     examples = tuple(
         Rejection(smi, (sentence,)) for smi, (_, sentence) in sorted(run.rejected.items())[:REJECTION_EXAMPLES]
@@ -554,6 +628,12 @@ def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
             + (f"stopped by the {run.stopped_by}" if run.stopped_by else "H-count hypotheses were capped")
             + "; the true structure may be missing from the list"
         )
+        if run.not_searched:
+            shown = run.not_searched[:NOT_SEARCHED_SHOWN]
+            more = len(run.not_searched) - len(shown)
+            warnings.append(
+                "not searched: " + "; ".join(shown) + (f"; and {more} more" if more > 0 else "")
+            )
     n_full = sum(1 for e in run.entries.values() if e.fit is not None)
     result_counts = (
         ("levels", len(run.levels_run)),
@@ -565,7 +645,9 @@ def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
         ("full_models", run.full_models),
         ("fully_scored", n_full),
         ("bound_only", len(ranked) - n_full),
-        ("rejected", len(run.rejected)),
+        ("rejected", len(run.rejected) + sum(run.tally.values())),
+        ("rejected_while_building", sum(run.tally.values())),
+        ("not_searched", len(run.not_searched)),
     )
     return SolveResult(
         problem=run.problem,
@@ -664,6 +746,11 @@ def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard
                 "its H distribution matches no reading of the peak list "
                 f"(structure: {have}; most likely reading: {best.describe()})"
             )
+    graph = Graph.from_smiles(smiles)
+    for e in read_evidence(problem):
+        why = e.reason(graph)
+        if why is not None:
+            reasons.append(f"{why} ({e.title}, a hard rule)")
     from rdkit import Chem
 
     mol = Chem.MolFromSmiles(smiles)

@@ -217,7 +217,11 @@ def neighbour_counts(
 
 
 def proton_groups(
-    problem: Problem, *, margin: int = 4, max_hypotheses: int = 400
+    problem: Problem,
+    *,
+    margin: int = 4,
+    max_hypotheses: int = 400,
+    carbon_h: dict[int, tuple[int, int]] | None = None,
 ) -> HypothesisSet:
     """Enumerate H-distribution hypotheses for a problem, cheapest first.
 
@@ -229,6 +233,10 @@ def proton_groups(
         Keep hypotheses whose plausibility cost is at most the best + margin.
     max_hypotheses : int
         Stop enumerating after this many raw solutions (``complete`` false).
+    carbon_h : dict, optional
+        ``{h: (lo, hi)}``: bounds on the number of carbons carrying h H
+        (0-3), e.g. from DEPT labels (:mod:`elucidate.constrain.evidence`);
+        readings outside them are never produced.
 
     Returns
     -------
@@ -243,7 +251,7 @@ def proton_groups(
     """
     if margin < 0 or max_hypotheses < 1:
         raise InputError("proton_groups: margin must be >= 0 and max_hypotheses >= 1")
-    return _proton_groups(problem, margin, max_hypotheses)
+    return _proton_groups(problem, margin, max_hypotheses, carbon_h or {})
 
 
 # ----------------------------------------------------------------- internals
@@ -287,7 +295,9 @@ def _kind_cost(kind: str, s: H1Signal, n_groups: int) -> int:
     return cost
 
 
-def _proton_groups(problem: Problem, margin: int, max_hypotheses: int) -> HypothesisSet:
+def _proton_groups(
+    problem: Problem, margin: int, max_hypotheses: int, carbon_h: dict[int, tuple[int, int]]
+) -> HypothesisSet:
     from ortools.sat.python import cp_model
 
     formula = problem.formula
@@ -364,6 +374,15 @@ def _proton_groups(problem: Problem, margin: int, max_hypotheses: int) -> Hypoth
     n_half_pairs = m.new_int_var(0, formula["C"], "pairs")
     m.add(2 * n_half_pairs == halves)
     m.add(total("CH3") + total("CH2") + total("CH") + n_half_pairs <= formula["C"])
+    by_h = {
+        3: total("CH3") + 0 * n_half_pairs,
+        2: total("CH2") + n_half_pairs,
+        1: total("CH") + 0 * n_half_pairs,
+        0: formula["C"] - total("CH3") - total("CH2") - total("CH") - n_half_pairs,
+    }
+    for h, (lo, hi) in sorted(carbon_h.items()):
+        m.add(by_h[h] >= lo)
+        m.add(by_h[h] <= hi)
     m.add(total("OH") + un.get("OH", 0) <= formula["O"])
     m.add(total("NH") + total("NH2") + un.get("NH", 0) + un.get("NH2", 0) <= formula["N"])
     m.add(total("SH") + un.get("SH", 0) <= formula["S"])
@@ -375,7 +394,10 @@ def _proton_groups(problem: Problem, margin: int, max_hypotheses: int) -> Hypoth
     solver.parameters.max_time_in_seconds = 10.0
     status = solver.solve(m)
     if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):
-        warnings.append("no way to read every signal as CH3/CH2/CH/OH/NH/SH groups within the formula")
+        warnings.append(
+            "no way to read every signal as CH3/CH2/CH/OH/NH/SH groups within the formula"
+            + (" and the DEPT carbon counts" if carbon_h else "")
+        )
         return HypothesisSet((), tuple(hs), deficit, True, tuple(warnings))
     best = round(solver.objective_value)
 

@@ -225,15 +225,35 @@ def _skeleton_list(
 def _work(spec: Spec) -> tuple[list[Problem], list[tuple[int, Skeleton]], FragmentPlan]:
     plan = plan_fragments(spec)
     probs = _problems(spec, plan)
+    multiple = _min_multiple_bonds(spec, plan)
     items: list[tuple[int, Skeleton]] = []
     o = spec.options
     for pi, prob in enumerate(probs):
         n = prob.n
-        max_edges = prob.total_bs // 2 - plan.internal_extra
+        max_edges = prob.total_bs // 2 - plan.internal_extra - multiple
         girth5 = o.no_small_rings and not plan.units
         sks = _skeleton_list(n, max_edges, prob.caps, girth5, None if plan.units else o.max_ring_size)
         items += [(pi, s) for s in sks]
     return probs, items, plan
+
+
+def _min_multiple_bonds(spec: Spec, plan: FragmentPlan) -> int:
+    """Multiple bonds the checks demand outside the fragments.
+
+    A check may declare ``min_unsaturated_carbons(formula)``; every double or
+    triple bond serves at most two carbons, so at least half that many
+    multiple bonds (less those inside fragments) are needed, which caps the
+    skeleton's edges (rings) below the formula's DoU.
+    """
+    need = max((c.min_unsaturated_carbons(spec.formula) for c in spec.checks
+                if hasattr(c, "min_unsaturated_carbons")), default=0)
+    if need <= 0:
+        return 0
+    inside = 0
+    for frag, k in plan.classes:
+        unsat = {i for a, b, o in frag.bonds if o >= 2 for i in (a, b) if frag.elements[i] == "C"}
+        inside += k * len(unsat)
+    return max(0, -(-(need - inside) // 2))
 
 
 def _structures(
@@ -256,7 +276,8 @@ def _structures(
     filters = Filters(o.no_hetero_hetero, o.no_cumulenes, o.min_ring_triple)
     req = [_smarts(s) for s in spec.require]
     forb = [_smarts(s) for s in spec.forbid]
-    per_structure = bool(req or forb or plan.units)
+    checks = tuple(spec.checks)
+    per_structure = bool(req or forb or plan.units or checks)
     visit = [0]
     deadline = None
     if limits is not None and limits.time_limit_s is not None:
@@ -291,6 +312,9 @@ def _structures(
                         st = plan.expand(st, spec)  # type: ignore[arg-type]
                         if st is None:
                             continue
+                    if checks and not all(c.admits_structure(st) for c in checks):
+                        stats.rejected_by_checks += 1
+                        continue
                     if req or forb:
                         mol = structure_mol(st)
                         if any(not mol.HasSubstructMatch(q) for q in req):

@@ -118,6 +118,11 @@ class Spec:
         SMARTS no output contains.
     options : Options
         Chemistry switches and filters.
+    checks : tuple
+        Further tests on each finished structure before it is written out:
+        objects with ``admits_structure(structure) -> bool`` (the solver
+        passes its evidence constraints, see :mod:`elucidate.constrain.evidence`).
+        They must be hashable and deterministic.
     """
 
     formula: Formula
@@ -126,6 +131,7 @@ class Spec:
     require: tuple[str, ...] = ()
     forbid: tuple[str, ...] = ()
     options: Options = Options()
+    checks: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -162,6 +168,8 @@ class Stats:
         Bond-order graphs (orbit representatives) completed.
     emitted : int
         Structures emitted.
+    rejected_by_checks : int
+        Finished structures turned down by ``Spec.checks``.
     stopped_by : str or None
         ``"max_structures"`` or ``"time_limit"`` when a limit stopped the run.
     """
@@ -171,6 +179,7 @@ class Stats:
     colourings: int = 0
     bond_graphs: int = 0
     emitted: int = 0
+    rejected_by_checks: int = 0
     stopped_by: str | None = None
 
     def add(self, other: "Stats") -> None:
@@ -180,6 +189,7 @@ class Stats:
         self.colourings += other.colourings
         self.bond_graphs += other.bond_graphs
         self.emitted += other.emitted
+        self.rejected_by_checks += other.rejected_by_checks
         self.stopped_by = self.stopped_by or other.stopped_by
 
     def to_json(self) -> dict[str, object]:
@@ -189,5 +199,6 @@ class Stats:
             "colourings": self.colourings,
             "bond_graphs": self.bond_graphs,
             "emitted": self.emitted,
+            "rejected_by_checks": self.rejected_by_checks,
             "stopped_by": self.stopped_by,
         }

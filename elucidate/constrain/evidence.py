@@ -1,0 +1,599 @@
+"""Spectral evidence as hard, explainable, relaxable constraints.
+
+Each kind of evidence read from the data is one object here.  Every object
+
+* checks a finished structure cheaply, before any prediction
+  (:meth:`Evidence.admits_structure`, called by the generator on each
+  structure it builds, so a structure that breaks it is never predicted or
+  scored);
+* says in words why a structure breaks it (:meth:`Evidence.reason`), for
+  ``explain`` and for rejection summaries;
+* may narrow the proton-group model before generation
+  (:meth:`Evidence.group_bounds`: e.g. DEPT fixes how many CH3, CH2, CH and
+  C there are, so H-count readings that contradict it are never generated);
+* carries a ``tier``: the solver's relaxation ladder drops tier-1 evidence
+  first (shift regions, line counts), then tier 2 (DEPT) together with the
+  hard fragments, and says so in ``relaxed``.
+
+The kinds:
+
+:class:`CarbonLineCount`
+    The number of 13C lines is a lower bound on the number of symmetry
+    classes of carbon (equivalent carbons that real spectra show apart, such
+    as the diastereotopic methyls of an isopropyl group, may count twice);
+    a list marked complete is also an upper bound.
+:class:`CarbonRegions`
+    Each 13C line lies in a shift region that only some carbons reach (a
+    line above 166 ppm needs a C=O or C=N carbon, ...; table
+    ``data/c13_regions.csv`` with a source per row), and a DEPT label fixes
+    its carbon's H count: the lines must be met by distinct carbons of the
+    right kind (a bipartite matching).
+:class:`CarbonHCounts`
+    DEPT/APT labels give the number of CH3, CH2, CH and C carbons.
+:class:`ProtonRegions`
+    H above 6.2 ppm sit on sp2/sp carbons (or a carbon with two
+    heteroatoms) or on O/N/S; H above 9.45 ppm on C=O/C=N carbons or on
+    O/N/S (table ``data/h1_regions.csv``).
+
+Structures are seen through :class:`Graph`: heavy-atom symbols, H counts and
+bonds with Kekulé orders, from a generator structure or an RDKit molecule.
+"""
+
+from __future__ import annotations
+
+import csv
+import functools
+from dataclasses import dataclass, field
+from importlib import resources
+from typing import Any, Callable
+
+from elucidate.model import Problem
+
+__all__ = [
+    "Graph",
+    "Evidence",
+    "CarbonLineCount",
+    "CarbonRegions",
+    "CarbonHCounts",
+    "ProtonRegions",
+    "Region",
+    "read_evidence",
+    "carbon_regions",
+    "proton_regions",
+]
+
+_HETERO = frozenset({"O", "N", "S", "F", "Cl", "Br", "I"})
+_XH = frozenset({"O", "N", "S"})
+
+# per-carbon flags
+_UNSAT = 1  # has a double or triple bond
+_CEQX = 2  # doubly bonded to O/N/S, or unsaturated with two heteroatoms, or an allene centre
+_HET1 = 4  # bonded to at least one heteroatom
+_HET2 = 8  # bonded to at least two heteroatoms
+
+#: what each region asks of a carbon (flag test)
+_NEEDS: dict[str, Callable[[int], bool]] = {
+    "c_eq_x": lambda f: bool(f & _CEQX),
+    "unsat_or_2het": lambda f: bool(f & (_UNSAT | _HET2)),
+    "not_plain_sp3": lambda f: bool(f & (_UNSAT | _HET1)),
+    "sp3": lambda f: not f & _UNSAT,
+}
+
+#: most bonds a heteroatom can make to carbon (S(VI), N as N+ counted high)
+_MAX_HETERO_BONDS = {"O": 2, "N": 4, "S": 6, "F": 1, "Cl": 1, "Br": 1, "I": 1}
+
+_DEPT_WORD = {3: "CH3", 2: "CH2", 1: "CH", 0: "C (no H)"}
+
+
+# ------------------------------------------------------------------ graphs
+
+
+@dataclass
+class Graph:
+    """A finished structure as the evidence checks see it.
+
+    Parameters
+    ----------
+    symbols : tuple of str
+        Heavy-atom element symbols.
+    hs : tuple of int
+        H on each heavy atom.
+    edges : tuple of (int, int)
+        Bonds between heavy atoms.
+    orders : tuple of int
+        Kekulé bond orders (1, 2, 3), one per edge.
+    mol_fn : callable, optional
+        Returns the RDKit molecule (built only when a check needs symmetry).
+    """
+
+    symbols: tuple[str, ...]
+    hs: tuple[int, ...]
+    edges: tuple[tuple[int, int], ...]
+    orders: tuple[int, ...]
+    mol_fn: Callable[[], Any] | None = None
+    _flags: list[int] | None = field(default=None, repr=False)
+
+    @classmethod
+    def from_structure(cls, st: Any) -> "Graph":
+        """From a generator :class:`~elucidate.generate.decorate.Structure`."""
+        from elucidate.generate.decorate import structure_mol
+
+        return cls(
+            tuple(lab.symbol for lab in st.labels),
+            tuple(st.hs()),
+            tuple(st.edges),
+            tuple(st.orders),
+            lambda: structure_mol(st),
+        )
+
+    @classmethod
+    def from_smiles(cls, smiles: str) -> "Graph":
+        """From a SMILES (Kekulé orders from RDKit)."""
+        from rdkit import Chem
+
+        mol = Chem.MolFromSmiles(smiles)
+        if mol is None:
+            raise ValueError(f"SMILES {smiles!r} does not parse")
+        kek = Chem.Mol(mol)
+        Chem.Kekulize(kek, clearAromaticFlags=True)
+        edges = []
+        orders = []
+        for b in kek.GetBonds():
+            u, v = sorted((b.GetBeginAtomIdx(), b.GetEndAtomIdx()))
+            edges.append((u, v))
+            orders.append(int(b.GetBondTypeAsDouble()))
+        return cls(
+            tuple(a.GetSymbol() for a in kek.GetAtoms()),
+            tuple(a.GetTotalNumHs() for a in kek.GetAtoms()),
+            tuple(edges),
+            tuple(orders),
+            lambda: mol,
+        )
+
+    def mol(self) -> Any:
+        if self.mol_fn is None:
+            raise ValueError("this graph carries no molecule")
+        return self.mol_fn()
+
+    def flags(self) -> list[int]:
+        """Per heavy atom: the _UNSAT/_CEQX/_HET1/_HET2 bits (carbons only; 0 else)."""
+        if self._flags is not None:
+            return self._flags
+        n = len(self.symbols)
+        flags = [0] * n
+        het = [0] * n
+        dbl_x = [False] * n
+        doubles = [0] * n
+        for (u, v), o in zip(self.edges, self.orders):
+            su, sv = self.symbols[u], self.symbols[v]
+            if sv in _HETERO:
+                het[u] += 1
+            if su in _HETERO:
+                het[v] += 1
+            if o >= 2:
+                flags[u] |= _UNSAT
+                flags[v] |= _UNSAT
+                if o == 2:
+                    doubles[u] += 1
+                    doubles[v] += 1
+                    if sv in _XH:
+                        dbl_x[u] = True
+                    if su in _XH:
+                        dbl_x[v] = True
+        for i, s in enumerate(self.symbols):
+            if s != "C":
+                flags[i] = 0
+                continue
+            if het[i] >= 1:
+                flags[i] |= _HET1
+            if het[i] >= 2:
+                flags[i] |= _HET2
+            if dbl_x[i] or doubles[i] >= 2 or (flags[i] & _UNSAT and het[i] >= 2):
+                flags[i] |= _CEQX
+        self._flags = flags
+        return flags
+
+    def carbons(self) -> list[int]:
+        return [i for i, s in enumerate(self.symbols) if s == "C"]
+
+
+# ---------------------------------------------------------------- tables
+
+
+@dataclass(frozen=True)
+class Region:
+    """A shift window and what an atom in it needs (one row of a table)."""
+
+    lo: float
+    hi: float
+    needs: str
+    words: str
+    source: str
+
+    def holds(self, shift: float) -> bool:
+        return self.lo <= shift < self.hi
+
+
+def _read_regions(name: str) -> tuple[Region, ...]:
+    text = resources.files("elucidate.constrain").joinpath(f"data/{name}").read_text(encoding="utf-8")
+    rows = []
+    for row in csv.DictReader(text.splitlines()):
+        if row["needs"] not in _NEEDS:
+            raise ValueError(f"constrain/data/{name}: unknown need {row['needs']!r}")
+        rows.append(Region(float(row["lo"]), float(row["hi"]), row["needs"], row["words"], row["source"]))
+    return tuple(rows)
+
+
+@functools.cache
+def carbon_regions() -> tuple[Region, ...]:
+    """13C shift regions (``data/c13_regions.csv``), loaded once."""
+    return _read_regions("c13_regions.csv")
+
+
+@functools.cache
+def proton_regions() -> tuple[Region, ...]:
+    """1H shift regions (``data/h1_regions.csv``), loaded once."""
+    return _read_regions("h1_regions.csv")
+
+
+# -------------------------------------------------------------- evidence
+
+
+class Evidence:
+    """Base class: one kind of evidence as a hard, relaxable constraint.
+
+    Subclasses set ``key`` (short id), ``title`` (words), ``tier`` (1:
+    relaxed first; 2: relaxed with the hard fragments) and ``relaxation``
+    (the phrase listed in ``relaxed`` when it is dropped), and implement
+    :meth:`reason`.
+    """
+
+    key: str = ""
+    title: str = ""
+    tier: int = 1
+    relaxation: str = ""
+
+    def describe(self) -> str:
+        """What the evidence asks of every candidate, in words."""
+        return self.title
+
+    def group_bounds(self) -> dict[int, tuple[int, int]] | None:
+        """Bounds (lo, hi) on the number of carbons with 0-3 H, or None."""
+        return None
+
+    def reason(self, graph: Graph) -> str | None:
+        """Why the structure breaks this evidence, or None if it does not."""
+        raise NotImplementedError
+
+    def min_unsaturated_carbons(self, formula: Any) -> int:
+        """A lower bound on the carbons with a double or triple bond that any
+        structure meeting this evidence has (the generator turns it into a cap
+        on the number of rings: each multiple bond serves at most two carbons)."""
+        return 0
+
+    def admits_structure(self, st: Any) -> bool:
+        """Generator hook: does a finished generator structure meet it?"""
+        return self.reason(Graph.from_structure(st)) is None
+
+    def admits_smiles(self, smiles: str) -> bool:
+        return self.reason(Graph.from_smiles(smiles)) is None
+
+
+def _fmt(shifts: list[float]) -> str:
+    return ", ".join(f"{s:.1f}" for s in shifts)
+
+
+@dataclass(frozen=True, eq=True)
+class CarbonLineCount(Evidence):
+    """Distinct carbons (symmetry classes) against the number of 13C lines.
+
+    ``lines`` carbons-per-line as given; ``complete``: the list has one line
+    per distinct carbon (no accidental overlap).
+
+    Examples
+    --------
+    >>> ev = CarbonLineCount(lines=4, complete=False)
+    >>> ev.reason(Graph.from_smiles("CCOC(C)=O")) is None
+    True
+    >>> ev.reason(Graph.from_smiles("COC(=O)OC"))
+    'has 2 distinct carbons, but 4 13C lines are observed'
+    """
+
+    lines: int = 0
+    complete: bool = False
+    key = "c13-lines"
+    title = "13C line count"
+    tier = 1
+    relaxation = "13C line count"
+
+    def describe(self) -> str:
+        if self.complete:
+            return f"exactly {self.lines} distinct carbons (complete 13C list of {self.lines} lines)"
+        return f"at least {self.lines} distinct carbons ({self.lines} 13C lines)"
+
+    def reason(self, graph: Graph) -> str | None:
+        carbons = graph.carbons()
+        if len(carbons) >= self.lines and not self.complete and self._quick_ok(graph):
+            return None
+        classes, splits = _carbon_classes(graph.mol())
+        if classes + splits < self.lines:
+            return f"has {classes} distinct carbons, but {self.lines} 13C lines are observed"
+        if self.complete and classes > self.lines:
+            return f"has {classes} distinct carbons, but the complete 13C list has only {self.lines} lines"
+        return None
+
+    def _quick_ok(self, graph: Graph) -> bool:
+        # a molecule whose carbons all differ in (H, flags, degree) meets any
+        # lower bound up to its carbon count without a symmetry computation
+        seen = set()
+        flags = graph.flags()
+        deg = [0] * len(graph.symbols)
+        for u, v in graph.edges:
+            deg[u] += 1
+            deg[v] += 1
+        for i in graph.carbons():
+            seen.add((graph.hs[i], flags[i], deg[i]))
+        return len(seen) >= self.lines
+
+
+def _carbon_classes(mol: Any) -> tuple[int, int]:
+    """(symmetry classes of carbon, classes real spectra may show as two lines).
+
+    Two equivalent carbons on a common non-aromatic neighbour (the methyls of
+    an isopropyl or gem-dimethyl group next to a stereocentre, the N-methyls
+    of an amide, the methyls of a C=C(CH3)2) may give two lines (common
+    practice); so may a pair bonded to such a pair (N,N-diethyl amides).
+    """
+    from rdkit import Chem
+
+    ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+    members: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetSymbol() == "C":
+            members.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    pairs = [m for m in members.values() if len(m) == 2]
+    can_split: set[tuple[int, int]] = set()
+    for a, b in pairs:
+        na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
+        nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
+        if any(not mol.GetAtomWithIdx(x).GetIsAromatic() for x in na & nb):
+            can_split.add((a, b))
+    for a, b in pairs:
+        if (a, b) in can_split:
+            continue
+        na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
+        nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
+        if any((x, y) in can_split or (y, x) in can_split for x in na for y in nb):
+            can_split.add((a, b))
+    return len(members), len(can_split)
+
+
+@dataclass(frozen=True, eq=True)
+class CarbonRegions(Evidence):
+    """13C lines by shift region and DEPT label, met by distinct carbons.
+
+    ``lines``: (shift, carbons, attached_h or -1) per observed line.
+
+    Examples
+    --------
+    >>> ev = CarbonRegions(lines=((198.4, 1, -1), (25.0, 1, -1)))
+    >>> ev.reason(Graph.from_smiles("CC(C)O")) is not None
+    True
+    >>> ev.reason(Graph.from_smiles("CC(C)=O")) is None
+    True
+    """
+
+    lines: tuple[tuple[float, int, int], ...] = ()
+    key = "c13-regions"
+    title = "13C shift regions and DEPT labels"
+    tier = 1
+    relaxation = "13C shift-region rules"
+
+    def demands(self) -> list[tuple[float, str | None, int]]:
+        """One (shift, need, H or -1) per carbon the lines ask for."""
+        out = []
+        for shift, n, h in self.lines:
+            region = next((r for r in carbon_regions() if r.holds(shift)), None)
+            need = region.needs if region else None
+            if need is None and h < 0:
+                continue
+            out += [(shift, need, h)] * max(1, n)
+        return out
+
+    def min_unsaturated_carbons(self, formula: Any) -> int:
+        dem = self.demands()
+        firm = sum(1 for _, need, _ in dem if need == "c_eq_x")
+        loose = sum(1 for _, need, _ in dem if need == "unsat_or_2het")
+        # an sp3 carbon with two heteroatoms uses two carbon-heteroatom bonds
+        bonds = sum(formula[el] * v for el, v in _MAX_HETERO_BONDS.items())
+        return firm + max(0, loose - bonds // 2)
+
+    def describe(self) -> str:
+        parts = []
+        for r in carbon_regions():
+            hits = [s for s, _, _ in self.lines if r.holds(s)]
+            if hits:
+                parts.append(f"{len(hits)} line(s) at {_fmt(hits)} need {r.words}")
+        return "; ".join(parts) or self.title
+
+    def reason(self, graph: Graph) -> str | None:
+        dem = self.demands()
+        if not dem:
+            return None
+        flags = graph.flags()
+        carbons = graph.carbons()
+        ok = [
+            [c for c in carbons if (need is None or _NEEDS[need](flags[c])) and (h < 0 or graph.hs[c] == h)]
+            for _, need, h in dem
+        ]
+        if _matching(ok, len(graph.symbols)):
+            return None
+        return self._words(dem, graph, flags, carbons)
+
+    def _words(self, dem: list, graph: Graph, flags: list[int], carbons: list[int]) -> str:
+        for r in carbon_regions():
+            want = [s for s, need, _ in dem if need == r.needs]
+            have = sum(1 for c in carbons if _NEEDS[r.needs](flags[c]))
+            if len(want) > have:
+                return (
+                    f"the 13C line(s) at {_fmt(want)} ppm need {len(want)} carbon(s) of this kind: "
+                    f"{r.words}; this structure has {have}"
+                )
+        for h in (3, 2, 1, 0):
+            want = [s for s, _, hh in dem if hh == h]
+            have = sum(1 for c in carbons if graph.hs[c] == h)
+            if len(want) > have:
+                return f"the DEPT labels ask for {len(want)} {_DEPT_WORD[h]} carbon(s) ({_fmt(want)}); this structure has {have}"
+        return "its carbons cannot meet every 13C line's shift region and DEPT label at once"
+
+
+def _matching(options: list[list[int]], n: int) -> bool:
+    """Can every demand get its own atom (Kuhn's augmenting paths)?"""
+    owner = [-1] * n
+    order = sorted(range(len(options)), key=lambda d: len(options[d]))
+
+    def augment(d: int, seen: list[bool]) -> bool:
+        for c in options[d]:
+            if seen[c]:
+                continue
+            seen[c] = True
+            if owner[c] < 0 or augment(owner[c], seen):
+                owner[c] = d
+                return True
+        return False
+
+    for d in order:
+        if not options[d] or not augment(d, [False] * n):
+            return False
+    return True
+
+
+@dataclass(frozen=True, eq=True)
+class CarbonHCounts(Evidence):
+    """How many carbons carry 3, 2, 1 and 0 H, from DEPT/APT labels.
+
+    ``bounds``: ((h, lo, hi), ...).
+
+    Examples
+    --------
+    >>> ev = CarbonHCounts(bounds=((3, 2, 2), (0, 1, 1)))
+    >>> ev.reason(Graph.from_smiles("CC(C)=O")) is None
+    True
+    >>> ev.reason(Graph.from_smiles("CCC=O"))
+    'DEPT shows 2 CH3 carbons; this structure has 1'
+    """
+
+    bounds: tuple[tuple[int, int, int], ...] = ()
+    key = "dept"
+    title = "carbon H counts from DEPT"
+    tier = 2
+    relaxation = "DEPT carbon counts"
+
+    def describe(self) -> str:
+        parts = []
+        for h, lo, hi in self.bounds:
+            parts.append(f"{lo} {_DEPT_WORD[h]}" if lo == hi else f"at least {lo} {_DEPT_WORD[h]}")
+        return "carbons by attached H (DEPT): " + ", ".join(parts)
+
+    def group_bounds(self) -> dict[int, tuple[int, int]]:
+        return {h: (lo, hi) for h, lo, hi in self.bounds}
+
+    def reason(self, graph: Graph) -> str | None:
+        for h, lo, hi in self.bounds:
+            have = sum(1 for c in graph.carbons() if graph.hs[c] == h)
+            if have < lo or have > hi:
+                shown = f"{lo}" if lo == hi or have < lo else f"at most {hi}"
+                if have < lo and lo != hi:
+                    shown = f"at least {lo}"
+                return f"DEPT shows {shown} {_DEPT_WORD[h]} carbons; this structure has {have}"
+        return None
+
+
+@dataclass(frozen=True, eq=True)
+class ProtonRegions(Evidence):
+    """1H signals far downfield need H on unsaturated carbons (or on O/N/S).
+
+    ``needs``: ((region index, H needed, shifts), ...) from the 1H list.
+
+    Examples
+    --------
+    >>> ev = ProtonRegions(needs=((0, 5, (7.3,)),))
+    >>> ev.reason(Graph.from_smiles("Cc1ccccc1")) is None
+    True
+    >>> ev.reason(Graph.from_smiles("CC1CCC=CC1")) is not None
+    True
+    """
+
+    needs: tuple[tuple[int, int, tuple[float, ...]], ...] = ()
+    key = "h1-regions"
+    title = "1H shift regions"
+    tier = 1
+    relaxation = "1H shift-region rules"
+
+    def describe(self) -> str:
+        regions = proton_regions()
+        return "; ".join(f"{h} H at {_fmt(list(s))} ppm need {regions[i].words}" for i, h, s in self.needs)
+
+    def reason(self, graph: Graph) -> str | None:
+        regions = proton_regions()
+        flags = graph.flags()
+        xh = sum(h for s, h in zip(graph.symbols, graph.hs) if s in _XH)
+        for i, need, shifts in self.needs:
+            test = _NEEDS[regions[i].needs]
+            have = xh + sum(graph.hs[c] for c in graph.carbons() if test(flags[c]))
+            if have < need:
+                return (
+                    f"the {need} H at {_fmt(list(shifts))} ppm need {regions[i].words}; "
+                    f"this structure has {have} such H"
+                )
+        return None
+
+
+# --------------------------------------------------------------- reading
+
+
+def read_evidence(problem: Problem) -> tuple[Evidence, ...]:
+    """Every piece of hard evidence the problem's data carry, in a fixed order.
+
+    Examples
+    --------
+    >>> from elucidate.parse import load_problem
+    >>> p = load_problem(formula="C3H6O", h1="2.17 (s, 6H)", c13="206.6 (C), 30.8 (CH3)")
+    >>> [e.key for e in read_evidence(p)]
+    ['c13-lines', 'c13-regions', 'dept']
+    """
+    out: list[Evidence] = []
+    c13 = problem.c13
+    if c13:
+        out.append(CarbonLineCount(len(c13), bool(getattr(problem, "c13_complete", False))))
+        lines = tuple((c.shift, c.carbons, -1 if c.attached_h is None else c.attached_h) for c in c13)
+        out.append(CarbonRegions(lines))
+        dept = _dept_bounds(problem)
+        if dept:
+            out.append(CarbonHCounts(dept))
+    needs = []
+    for i, region in enumerate(proton_regions()):
+        hits = [s for s in problem.h1 if s.shift_low >= region.lo]
+        if hits:
+            needs.append((i, sum(max(1, round(s.h_count)) for s in hits), tuple(s.shift for s in hits)))
+    if needs:
+        out.append(ProtonRegions(tuple(needs)))
+    return tuple(out)
+
+
+def _dept_bounds(problem: Problem) -> tuple[tuple[int, int, int], ...]:
+    """Carbons per H count from labelled lines: lower bounds; exact when
+    every line is labelled and the lines account for every carbon."""
+    labelled = [c for c in problem.c13 if c.attached_h is not None]
+    if not labelled:
+        return ()
+    n_c = problem.formula["C"]
+    every = len(labelled) == len(problem.c13) and sum(c.carbons for c in problem.c13) == n_c
+    out = []
+    for h in (3, 2, 1, 0):
+        k = sum(c.carbons for c in labelled if c.attached_h == h)
+        if every:
+            out.append((h, k, k))
+        elif k:
+            out.append((h, k, n_c))
+    return tuple(out)

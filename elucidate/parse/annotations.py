@@ -30,7 +30,13 @@ from importlib import resources
 from typing import Sequence
 
 from elucidate.model import SetAside
-from elucidate.parse.solvents import Solvent, find_solvent, solvents
+from elucidate.parse.solvents import (
+    C13_TOLERANCE,
+    H1_RESIDUAL_TOLERANCE,
+    Solvent,
+    find_solvent,
+    solvents,
+)
 
 __all__ = [
     "Impurity",
@@ -222,7 +228,9 @@ def set_aside_reason(annotation: Annotation, nucleus: str, shift: float, solvent
             return residual
         row = find_solvent(imp.solvent)
         if solvent is None and row is not None:
-            if any(abs(shift - p) <= _tolerance(nucleus, "solvent") for p in _solvent_positions(row, nucleus)):
+            # no solvent stated: the residual signal only where it sits (CHCl3 at 7.26, not CH2Cl2 at 5.30)
+            tol = H1_RESIDUAL_TOLERANCE if nucleus == "1H" else C13_TOLERANCE
+            if any(abs(shift - p) <= tol for p in _solvent_positions(row, nucleus)):
                 return residual
     return f"an impurity signal ({label})"
 

@@ -9,8 +9,10 @@ commas or semicolons; each is a shift or a range (hyphen or en dash, either
 order) with details in parentheses: multiplicity, ``J = a, b Hz`` (or ``J a
 Hz``), the H count ``nH`` (before or after the multiplicity) and, after the H
 count, an assignment.  Relative integrals (``1.00``, ``0.67``) are scaled to the
-formula's H count with a warning.  Every error names the offending token and
-its 1-based position in the text.
+formula's H count with a warning.  A signal annotated as the solvent, water or
+an impurity (``7.26 (CHCl3)``, ``1.56 (br s, H2O)``, ``(solvent)``) needs no H
+count and is set aside (:attr:`PeakList.set_aside`), not counted.  Every error
+names the offending token and its 1-based position in the text.
 
 Tables (CSV/TSV, JCAMP-DX) are read into the same :class:`RawH1` rows and
 finished by :func:`finish_h1`, so every input route gives the same signals.

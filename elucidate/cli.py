@@ -99,6 +99,14 @@ ForbidOpt = Annotated[
     Optional[list[str]],
     typer.Option("--forbid", help="SMARTS no candidate may contain (repeatable)."),
 ]
+C13CompleteOpt = Annotated[
+    Optional[bool],
+    typer.Option(
+        "--c13-complete/--no-c13-complete",
+        help="The 13C list is complete: every distinct carbon has its own line (no accidental overlap).",
+        show_default=False,
+    ),
+]
 JsonOpt = Annotated[bool, typer.Option("--json", help="Write one JSON document to stdout.")]
 
 
@@ -131,6 +139,7 @@ def read_command(
     field: FieldOpt = None,
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
+    c13_complete: C13CompleteOpt = None,
     json_out: JsonOpt = False,
 ) -> None:
     """Read an unknown and show what was understood: formula, DoU, the 1H and
@@ -147,6 +156,7 @@ def read_command(
         field_mhz=field,
         require=tuple(require or ()),
         forbid=tuple(forbid or ()),
+        c13_complete=c13_complete,
     )
     for message in problem.warnings:
         warn(message)
@@ -410,12 +420,15 @@ def _deliver(
         render(outcome)
 
 
-def _load(case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any) -> Any:
+def _load(
+    case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any,
+    c13_complete: bool | None = None,
+) -> Any:
     from elucidate.parse import load_problem
 
     problem = load_problem(
         case, formula=formula, h1=h1, c13=c13, solvent=solvent, field_mhz=field,
-        require=tuple(require or ()), forbid=tuple(forbid or ()),
+        require=tuple(require or ()), forbid=tuple(forbid or ()), c13_complete=c13_complete,
     )
     for message in problem.warnings:
         warn(message)
@@ -433,6 +446,7 @@ def solve_command(
     field: FieldOpt = None,
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
+    c13_complete: C13CompleteOpt = None,
     top: TopOpt = 10,
     time_limit: TimeLimitOpt = None,
     max_structures: MaxStructuresOpt = None,
@@ -450,7 +464,7 @@ def solve_command(
 
     _check_output(report, "--report")
     _check_output(sdf, "--sdf")
-    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
     with stderr_progress() as progress:
         result = solve(
             problem, top=top, time_limit_s=time_limit, max_structures=max_structures, progress=progress
@@ -479,6 +493,7 @@ def explain_command(
     field: FieldOpt = None,
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
+    c13_complete: C13CompleteOpt = None,
     time_limit: TimeLimitOpt = None,
     max_structures: MaxStructuresOpt = None,
     report: ReportOpt = None,
@@ -497,7 +512,7 @@ def explain_command(
         if case is not None:
             raise InputError(f"explain: give the case file once (--case {case} and {first!r})")
         case, smiles = Path(first), second
-    problem = _load(case, formula, h1, c13, solvent, field, require, forbid)
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
     with stderr_progress() as progress:
         explanation = explain(
             problem, smiles, time_limit_s=time_limit, max_structures=max_structures, progress=progress

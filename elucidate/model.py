@@ -22,6 +22,7 @@ __all__ = [
     "Formula",
     "H1Signal",
     "C13Signal",
+    "SetAside",
     "Problem",
     "Coupling",
     "Environment",
@@ -180,6 +181,24 @@ class C13Signal(_JsonMixin):
 
 
 @dataclass(frozen=True)
+class SetAside(_JsonMixin):
+    """A signal the user annotated as the solvent, water or an impurity.
+
+    It is read but kept out of :attr:`Problem.h1` / :attr:`Problem.c13`;
+    ``text`` is the signal as given (``"7.26 (CHCl3)"``), ``label`` the
+    annotation (``"CHCl3"``), ``reason`` what it was taken for (``"the
+    residual solvent signal"``), ``where`` its place in the input.
+    """
+
+    nucleus: str  # "1H" | "13C"
+    shift: float
+    text: str
+    label: str
+    reason: str
+    where: str = ""
+
+
+@dataclass(frozen=True)
 class Problem(_JsonMixin):
     """A validated unknown: formula, spectra, and user constraints."""
 
@@ -193,6 +212,8 @@ class Problem(_JsonMixin):
     name: str | None = None
     description: str | None = None
     warnings: tuple[str, ...] = ()
+    set_aside: tuple[SetAside, ...] = ()  # solvent/impurity signals, not in h1/c13
+    c13_complete: bool = False  # every distinct carbon has its own 13C line
 
     @property
     def h_total(self) -> float:
@@ -212,6 +233,8 @@ class Problem(_JsonMixin):
                 "require": list(self.require),
                 "forbid": list(self.forbid),
                 "warnings": list(self.warnings),
+                "set_aside": [a.to_json() for a in self.set_aside],
+                "c13_complete": self.c13_complete,
             }
         )
         return out

@@ -75,6 +75,10 @@ def test_same_signals_with_j_without_equals() -> None:
         (["--formula", "C9H10O2"], "no 1H peak list"),
         ([str(CASES / "missing.toml")], "not found"),
         (["--formula", "C9H10O2", "--h1", BENZYL, "--field", "0"], "not a spectrometer frequency"),
+        (["--formula", "C9H10O2", "--h1", "7.26 (CHCl3), 1.56 (br s, H2O)"], "every signal is annotated as solvent"),
+        (["--formula", "C9H10O2", "--h1", f"{BENZYL}, 7.26 (CHCl3, xyz)"], "'xyz' at position"),
+        (["--formula", "C9H10O2", "--h1", BENZYL, "--c13-complete"], "no 13C list was given"),
+        (["--formula", "C9H10O2", "--h1", BENZYL, "--c13", "128.6 (CH, CH3)"], "contradicts 'CH'"),
     ],
 )
 def test_bad_input_exit_2_one_line(args: list[str], token: str) -> None:
@@ -153,3 +157,60 @@ def test_real_process_one_line_and_exit_code() -> None:
     )
     doc = json.loads(good.stdout)
     assert (good.returncode, doc["dou"], len(doc["h1"]), doc["h1_total"]) == (0, 5, 3, 10)
+
+
+# Benzyl acetate with residual CHCl3, water and grease in CDCl3 (positions: Gottlieb, Kotlyar,
+# Nudelman, J. Org. Chem. 1997, 62, 7512; 7.26 and 77.16 check values, 1.56 and 0.07 from memory).
+ANNOTATED = "7.36–7.28 (m, 5H), 7.26 (CHCl3), 5.11 (s, 2H), 2.09 (s, 3H), 1.56 (br s, H2O), 0.07 (s, grease)"
+C13 = "170.9 (C), 136.0 (C), 128.6 (2 × CH), 128.3 (CH), 128.2 (2C, CH), 77.16 (CDCl3), 66.3 (CH2), 21.0 (CH₃)"
+
+
+def test_read_shows_set_aside_signals_text() -> None:
+    result = read("--formula", "C9H10O2", "--h1", ANNOTATED, "--c13", C13, "--solvent", "CDCl3")
+    assert result.exit_code == 0, result.stderr
+    out = result.stdout
+    assert "1H signals   3, 10 H (formula 10 H)" in out
+    assert "13C signals  7, 9 C (formula 9 C)" in out
+    assert "Set aside    4 (not signals of the compound)" in out
+    for line in ("  - 1H 7.26 (CHCl3): the residual solvent signal",
+                 "  - 1H 1.56 (br s, H2O): the water signal",
+                 "  - 1H 0.07 (s, grease): an impurity signal (grease)",
+                 "  - 13C 77.16 (CDCl3): the solvent signal"):
+        assert line in out, line
+    assert "13C complete not stated" in out
+    assert "warning: 1H signal 7.26 (CHCl3) set aside as the residual solvent signal" in result.stderr
+    assert "Traceback" not in result.stderr
+
+
+def test_read_shows_set_aside_signals_json_and_c13_complete() -> None:
+    result = read("--formula", "C9H10O2", "--h1", ANNOTATED, "--c13", C13, "--c13-complete", "--json")
+    assert result.exit_code == 0, result.stderr
+    doc = json.loads(result.stdout)
+    assert doc["c13_complete"] is True
+    assert doc["h1_total"] == 10 and doc["c13_carbons"] == 9
+    assert [(a["nucleus"], a["shift"], a["text"], a["reason"]) for a in doc["set_aside"]] == [
+        ("1H", 7.26, "7.26 (CHCl3)", "the residual solvent signal"),
+        ("1H", 1.56, "1.56 (br s, H2O)", "the water signal"),
+        ("1H", 0.07, "0.07 (s, grease)", "an impurity signal (grease)"),
+        ("13C", 77.16, "77.16 (CDCl3)", "the solvent signal"),
+    ]
+    assert sum("set aside" in w for w in doc["warnings"]) == 4
+    text = read("--formula", "C9H10O2", "--h1", BENZYL, "--c13", C13.replace(", 77.16 (CDCl3)", ""),
+                "--c13-complete").stdout
+    assert "13C complete yes" in text and "Set aside    none" in text
+    plain = json.loads(read("--formula", "C9H10O2", "--h1", BENZYL, "--json").stdout)
+    assert plain["c13_complete"] is False and plain["set_aside"] == []
+
+
+def test_solve_and_explain_take_c13_complete() -> None:
+    # Option plumbing only: the flag reaches the Problem the solver reports back.
+    args = ["--formula", "C9H10O2", "--h1", ANNOTATED, "--c13", C13, "--c13-complete", "--json"]
+    for command in (["solve", *args, "--max-structures", "1"], ["explain", "CC(=O)OCc1ccccc1", *args,
+                                                                 "--max-structures", "1"]):
+        help_text = runner.invoke(app, [command[0], "--help"]).stdout
+        assert "--c13-complete" in help_text
+        result = runner.invoke(app, command)
+        assert result.exit_code == 0, result.stderr
+        doc = json.loads(result.stdout)
+        assert doc["input"]["c13_complete"] is True
+        assert len(doc["input"]["set_aside"]) == 4

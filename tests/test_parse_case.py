@@ -97,6 +97,9 @@ peaks = [{shift = 171.1, type = "C"}, {shift = 60.4, dept = "CH2"}, {shift = 21.
         ('formula = "C4H8O2"\nh1 = "2.05 (s, 3H)"\nrequire = [1]\n', r"list of SMARTS"),
         ('formula = "C4H8O2"\nh1 = "2.05 (s, 3H)"\nrequire = ["C(=O"]\n', r"--require #1: 'C\(=O' is not valid SMARTS"),
         ('formula = "C4H8O2"\nh1 = "2.05 (s, 3H)"\nrequire = ["C=O"]\nforbid = ["C=O"]\n', r"both required and forbidden"),
+        ('formula = "C4H8O2"\nh1 = "2.05 (s, 3H)"\nc13 = "21.0"\nc13_complete = "yes"\n', r"'c13_complete' must be true or false"),
+        ('formula = "C4H8O2"\nh1 = "2.05 (s, 3H)"\nc13_complete = true\n', r"c13_complete: the 13C list is said to be complete, but no 13C list"),
+        ('formula = "C4H8O2"\nh1 = "7.26 (CHCl3)"\n', r"case file, h1: 1H list: every signal is annotated as solvent"),
     ],
 )
 def test_bad_case_files(text: str, match: str, tmp_path: Path) -> None:
@@ -174,3 +177,35 @@ def test_json_is_deterministic() -> None:
 def test_single_smarts_string_is_one_pattern() -> None:
     problem = load_problem(formula="C4H8O2", h1="2.05 (s, 3H)", require="C(=O)O")  # type: ignore[arg-type]
     assert problem.require == ("C(=O)O",)
+
+
+# Ethyl acetate in CDCl3 (Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512; from memory).
+ETHYL_ACETATE_H1 = "4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)"
+ETHYL_ACETATE_C13 = "171.4 (C), 60.5 (CH2), 21.0 (CH3), 14.2 (CH3)"
+
+
+def test_c13_complete_key_and_option(tmp_path: Path) -> None:
+    case = tmp_path / "ea.toml"
+    case.write_text(
+        f'formula = "C4H8O2"\nh1 = "{ETHYL_ACETATE_H1}"\nc13 = "{ETHYL_ACETATE_C13}"\nc13_complete = true\n',
+        encoding="utf-8",
+    )
+    assert load_problem(case).c13_complete is True
+    assert load_problem(case).to_json()["c13_complete"] is True
+    assert load_problem(case, c13_complete=False).c13_complete is False  # the option wins
+    plain = load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13=ETHYL_ACETATE_C13)
+    assert plain.c13_complete is False and plain.to_json()["c13_complete"] is False
+    assert load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13=ETHYL_ACETATE_C13,
+                        c13_complete=True).c13_complete is True
+    with pytest.raises(InputError, match=r"^--c13-complete: the 13C list is said to be complete"):
+        load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13_complete=True)
+    with pytest.raises(InputError, match=r"--c13-complete must be true or false"):
+        load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13=ETHYL_ACETATE_C13, c13_complete="yes")  # type: ignore[arg-type]
+
+
+def test_set_aside_reasons_use_the_solvent_chosen_from_the_header() -> None:
+    # acetone-d5 residual at 2.05 in acetone-d6 (Gottlieb et al. 1997): the header names the solvent.
+    problem = load_problem(formula="C9H10O2",
+                           h1="1H NMR (400 MHz, acetone-d6) δ 7.36 (m, 5H), 5.11 (s, 2H), 2.05 (acetone), 2.03 (s, 3H)")
+    assert problem.solvent == "acetone-d6"
+    assert [a.reason for a in problem.set_aside] == ["the residual solvent signal"]

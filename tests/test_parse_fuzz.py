@@ -34,21 +34,26 @@ REAL_H1 = [
     "6.72 (dd, J = 17.6, 10.9 Hz, 1H); 5.75 (d, J = 17.6 Hz, 1H); 5.24 (d, J = 10.9 Hz, 1H)",
     "3.87 (d, 1.00), 2.33 (q, 1.01), 1.92 (m, 0.49), 1.14 (t, 1.52), 0.93 (d, 3.03)",
     "1.92 (br s, 1H, OH), 3.50 (2H, app t, J 6.5 Hz, CH2)",
+    "7.36–7.28 (m, 5H), 7.26 (CHCl3), 5.11 (s, 2H), 2.17 (s, acetone), 1.56 (br s, H2O), 0.07 (s, grease)",
+    "7.38 (m, 6H, ArH + CHCl3), 3.49 (s, residual solvent), 2.50 (quint, DMSO-d5), 0.00 (impurity)",
 ]
 REAL_C13 = [
     "13C NMR (101 MHz, CDCl3) δ 171.1 (C), 60.4 (CH2), 21.0 (CH3), 14.2 (CH3).",
     "170.9, 136.0, 128.6 (2C), 128.3, 128.2 (2 × CH), 66.3, 21.0",
     "124.3 (q, J = 272 Hz), 30.1 (t)",
+    "170.9 (C), 128.6 (2 × CH₃), 77.16 (CDCl3), 77.0 (t, CDCl3), 66.3 (CH2 x 2), 29.7 (grease)",
 ]
 REAL_CSV = [
     "shift,mult,J (Hz),nH\n7.36-7.28,m,,5\n5.11,s,,2\n4.12,q,7.1,2\n",
     "δ (ppm)\tMult.\tIntegral\n7,36\tm\t2.50\n5.11\ts\t1.00\n",
     "Shift;Mult;Integral\n7,36-7,28;m;5,00\n5,11;s;2,00\n",
     "shift,nC,DEPT\n197.8,1,C\n129.3,2,CH\n",
+    "shift,mult,nH,assignment\n7.26,s,,CHCl3\n5.11,s,2,OCH2\n1.56,br s,,water\n",
 ]
 REAL_JCAMP = [
     (CASES / "u033-h1.jdx").read_text(encoding="utf-8"),
     "##TITLE=a\n##PEAK ASSIGNMENTS=(XYMA)\n(3.87, 2, D, <OCH2>)\n(0.93, 6, D, <(CH3)2>)\n##END=\n",
+    "##TITLE=s\n##PEAK ASSIGNMENTS=(XYMA)\n(7.26, , S, <CHCl3>)\n(0.93, 6, D, <(CH3)2>)\n##END=\n",
     "##TITLE=hz\n##.OBSERVE FREQUENCY=400\n##XUNITS=HZ\n##XFACTOR=0.5\n##PEAK TABLE=(XYW..XYW)\n3096, 2, 1.2\n",
 ]
 REAL_TOML = [p.read_text(encoding="utf-8") for p in sorted(CASES.glob("*.toml"))]

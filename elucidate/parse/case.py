@@ -11,6 +11,7 @@ Case-file keys (all optional except ``formula`` and ``h1``; see docs/parse.md)::
     c13 = "171.1, 60.4, 21.0"         # text or "@file"
     require = ["C(=O)O"]              # SMARTS every candidate must contain
     forbid = ["[OX2H]"]               # SMARTS no candidate may contain
+    c13_complete = true               # every distinct carbon has its own 13C line
 
 ``h1`` and ``c13`` may also be tables: ``[h1]`` with one of ``text``, ``file``
 or ``peaks`` (an array of inline tables with the same loose column names as a
@@ -27,11 +28,12 @@ from pathlib import Path
 from typing import Any, Iterator, Sequence
 
 from elucidate.errors import InputError
-from elucidate.model import C13Signal, Formula, H1Signal, Problem
+from elucidate.model import C13Signal, Formula, H1Signal, Problem, SetAside
+from elucidate.parse.annotations import set_aside_record, set_aside_warnings
 from elucidate.parse.formula import parse_formula
 from elucidate.parse.jcamp import jcamp_c13_rows, jcamp_h1_rows, looks_like_jcamp, read_jcamp
 from elucidate.parse.lexing import short
-from elucidate.parse.peaks import PeakList, finish_c13, finish_h1, read_c13_text, read_h1_text
+from elucidate.parse.peaks import PeakList, c13_peak_list, h1_peak_list, read_c13_text, read_h1_text
 from elucidate.parse.solvents import c13_solvent_warnings, h1_solvent_warnings, normalise_solvent
 from elucidate.parse.tables import c13_rows, column_role, h1_rows, looks_like_table, row_to_c13, row_to_h1
 
@@ -48,6 +50,7 @@ __all__ = [
 #: Keys a case file may have at its top level.
 CASE_KEYS = (
     "name", "description", "formula", "solvent", "field_mhz", "field", "h1", "c13", "require", "forbid",
+    "c13_complete",
 )
 _SPECTRUM_KEYS = ("text", "file", "peaks")
 #: Peak files larger than this are refused (a peak list is a few kB).
@@ -78,6 +81,8 @@ class _Settings:
     require: tuple[str, ...] = ()
     forbid: tuple[str, ...] = ()
     formula_origin: str = "--formula"
+    c13_complete: bool = False
+    c13_complete_origin: str = "--c13-complete"
 
 
 def load_problem(
@@ -90,6 +95,7 @@ def load_problem(
     field_mhz: float | None = None,
     require: Sequence[str] = (),
     forbid: Sequence[str] = (),
+    c13_complete: bool | None = None,
 ) -> Problem:
     """Read one unknown: a case file, options, or both (options win).
 
@@ -100,6 +106,9 @@ def load_problem(
     formula, h1, c13, solvent, field_mhz, require, forbid
         Override the case file's keys.  ``h1``/``c13`` are peak-list text or
         ``@path`` to a CSV/TSV table, a JCAMP-DX file or a text file.
+    c13_complete : bool, optional
+        True: the 13C list is complete (every distinct carbon has its own
+        line); overrides the case file's ``c13_complete``.
 
     Returns
     -------
@@ -118,6 +127,8 @@ def load_problem(
             raise InputError(f"{label} must be text, not {type(value).__name__}")
     if field_mhz is not None and (isinstance(field_mhz, bool) or not isinstance(field_mhz, (int, float))):
         raise InputError(f"--field must be a number of MHz, not {type(field_mhz).__name__}")
+    if c13_complete is not None and not isinstance(c13_complete, bool):
+        raise InputError(f"--c13-complete must be true or false, not {type(c13_complete).__name__}")
     require = (require,) if isinstance(require, str) else tuple(require)
     forbid = (forbid,) if isinstance(forbid, str) else tuple(forbid)
     settings = _Settings()
@@ -142,6 +153,9 @@ def load_problem(
         settings.require = tuple(require)
     if forbid:
         settings.forbid = tuple(forbid)
+    if c13_complete is not None:
+        settings.c13_complete = c13_complete
+        settings.c13_complete_origin = "--c13-complete"
     return _problem(settings)
 
 
@@ -180,19 +194,15 @@ def read_peak_text(text: str, name: str, nucleus: str, formula: Formula | None =
     if suffix in _JCAMP_SUFFIXES or (suffix not in _TABLE_SUFFIXES and looks_like_jcamp(text)):
         doc = read_jcamp(text, name, nucleus)
         if nucleus == "1H":
-            signals, warnings = finish_h1(jcamp_h1_rows(doc), formula)
             field_mhz = doc.observe_mhz if doc.nucleus in (None, "1H") else None
-            return PeakList(signals, tuple(warnings), field_mhz, doc.solvent)
-        c_signals, c_warnings = finish_c13(jcamp_c13_rows(doc))
-        return PeakList(c_signals, tuple(c_warnings), None, doc.solvent)
+            return h1_peak_list(jcamp_h1_rows(doc), formula, (), field_mhz, doc.solvent)
+        return c13_peak_list(jcamp_c13_rows(doc), (), doc.solvent)
     if suffix in _TABLE_SUFFIXES or looks_like_table(text):
         if nucleus == "1H":
             rows, notes = h1_rows(text, name)
-            signals, warnings = finish_h1(rows, formula)
-            return PeakList(signals, tuple(notes + warnings))
+            return h1_peak_list(rows, formula, notes)
         c_rows, notes = c13_rows(text, name)
-        c_signals, c_warnings = finish_c13(c_rows)
-        return PeakList(c_signals, tuple(notes + c_warnings))
+        return c13_peak_list(c_rows, notes)
     try:
         if nucleus == "1H":
             return read_h1_text(text, formula=formula)
@@ -303,6 +313,11 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
             if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
                 raise InputError(f"{origin}: '{key}' must be a list of SMARTS strings")
             setattr(s, key, tuple(value))
+    if "c13_complete" in doc:
+        if not isinstance(doc["c13_complete"], bool):
+            raise InputError(f"{origin}: 'c13_complete' must be true or false (no quotes)")
+        s.c13_complete = doc["c13_complete"]
+        s.c13_complete_origin = f"{origin}, c13_complete"
     return s
 
 
@@ -391,10 +406,8 @@ def _read_spectrum(source: _Source, nucleus: str, formula: Formula) -> PeakList:
         return read_peak_file(path, nucleus, formula)
     rows = _inline_rows(source.value, nucleus, source.origin)
     if nucleus == "1H":
-        signals, warnings = finish_h1([row_to_h1(r, at) for at, r in rows], formula)
-        return PeakList(signals, tuple(warnings))
-    c_signals, c_warnings = finish_c13([row_to_c13(r, at) for at, r in rows])
-    return PeakList(c_signals, tuple(c_warnings))
+        return h1_peak_list([row_to_h1(r, at) for at, r in rows], formula)
+    return c13_peak_list([row_to_c13(r, at) for at, r in rows])
 
 
 def _problem(s: _Settings) -> Problem:
@@ -434,8 +447,15 @@ def _problem(s: _Settings) -> Problem:
     if field_mhz is not None and not (math.isfinite(field_mhz) and 10 <= field_mhz <= 2000):
         raise InputError(f"field '{field_mhz:g}' MHz is not a spectrometer frequency (10–2000 MHz)")
 
+    set_aside = _final_set_aside(h1.set_aside + (c13.set_aside if c13 else ()), solvent)
+    warnings.extend(set_aside_warnings(set_aside, solvent))
     warnings.extend(h1_solvent_warnings(h1.signals, solvent))
     c13_signals: tuple[C13Signal, ...] = c13.signals if c13 else ()
+    if s.c13_complete and not c13_signals:
+        raise InputError(
+            f"{s.c13_complete_origin}: the 13C list is said to be complete, but no 13C list was given "
+            "(use --c13 or 'c13 =')"
+        )
     if c13_signals:
         warnings.extend(c13_solvent_warnings(c13_signals, solvent))
         n_c = sum(sig.carbons for sig in c13_signals)
@@ -460,6 +480,15 @@ def _problem(s: _Settings) -> Problem:
         name=s.name,
         description=s.description,
         warnings=tuple(_unique(warnings)),
+        set_aside=set_aside,
+        c13_complete=s.c13_complete,
+    )
+
+
+def _final_set_aside(items: tuple[SetAside, ...], solvent: str | None) -> tuple[SetAside, ...]:
+    """The set-aside signals with their reasons judged under the problem's solvent."""
+    return tuple(
+        set_aside_record(a.nucleus, a.shift, a.text, a.label, a.where, solvent) for a in items
     )
 
 

@@ -21,6 +21,7 @@ import re
 from dataclasses import dataclass
 
 from elucidate.errors import InputError
+from elucidate.parse.annotations import read_annotation
 from elucidate.parse.lexing import OFF_RESONANCE_H, short, to_float
 from elucidate.parse.multiplicity import normalise_multiplicity
 from elucidate.parse.peaks import RawC13, RawH1
@@ -339,6 +340,11 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
     rows = []
     for p in doc.peaks:
         where = f"{doc.name} line {p.line}"
+        aside = _annotation(p)
+        if aside is not None:
+            rows.append(RawH1(p.x, p.x, "m", [], p.y or 0.0, False, text=f"{p.x:g} ({aside})",
+                              where=where, set_aside=aside))
+            continue
         if p.y is None:
             raise InputError(f"{where}: peak at {p.x:g} ppm has no Y (integral): cannot count its H")
         label, broad, apparent, notes = "m", False, False, []
@@ -353,8 +359,9 @@ def jcamp_h1_rows(doc: JcampPeaks) -> list[RawH1]:
         text = f"{p.x:g}, {p.y:g}" + (f", {p.m}" if p.m else "") + (f", <{p.a}>" if p.a else "")
         rows.append(RawH1(p.x, p.x, label, [], p.y, False, broad, apparent, p.a, text, where, notes))
     close = _close_lines(doc)
-    if close:
-        rows[0].notes.append(
+    kept = [r for r in rows if r.set_aside is None]
+    if close and kept:
+        kept[0].notes.append(
             f"{doc.name}: peaks {close} lie within {LINE_SPACING_HZ:g} Hz of each other — if they are "
             "the lines of one multiplet, give one row per signal (each row is read as a signal)"
         )
@@ -379,6 +386,10 @@ def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:
     for p in doc.peaks:
         where = f"{doc.name} line {p.line}"
         attached = None
+        aside = _annotation(p)
+        if aside is not None:
+            rows.append(RawC13(p.x, 1, None, f"{p.x:g} ({aside})", where, set_aside=aside))
+            continue
         if p.m:
             key = p.m.strip().lower()
             if key in OFF_RESONANCE_H:
@@ -387,3 +398,9 @@ def jcamp_c13_rows(doc: JcampPeaks) -> list[RawC13]:
                 raise InputError(f"{where}: '{short(p.m)}' is not a 13C multiplicity (S, D, T, Q, M, U)")
         rows.append(RawC13(p.x, 1, attached, f"{p.x:g}" + (f", {p.m}" if p.m else ""), where))
     return rows
+
+
+def _annotation(p: JcampPeak) -> str | None:
+    """The peak's assignment text, when it names the solvent, water or an impurity."""
+    note = read_annotation(p.a) if p.a else None
+    return note.label if note is not None else None

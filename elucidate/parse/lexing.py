@@ -43,7 +43,8 @@ J_START_RE = re.compile(
 #: DEPT / attached-H labels of 13C signals -> number of attached H (common practice).
 DEPT_LABELS = {
     "ch3": 3, "ch2": 2, "ch": 1, "c": 0, "cq": 0, "c_q": 0, "qc": 0, "quat": 0, "quaternary": 0,
-    "cquat": 0, "c quat": 0, "ch₃": 3, "ch₂": 2,
+    "cquat": 0, "c quat": 0, "ch₃": 3, "ch₂": 2, "c-q": 0, "quat.": 0, "quat c": 0, "quat. c": 0,
+    "quaternary c": 0,
 }
 #: Off-resonance decoupled 13C multiplicities s/d/t/q -> attached H (common practice).
 OFF_RESONANCE_H = {"s": 0, "d": 1, "t": 2, "q": 3}

@@ -9,8 +9,10 @@ commas or semicolons; each is a shift or a range (hyphen or en dash, either
 order) with details in parentheses: multiplicity, ``J = a, b Hz`` (or ``J a
 Hz``), the H count ``nH`` (before or after the multiplicity) and, after the H
 count, an assignment.  Relative integrals (``1.00``, ``0.67``) are scaled to the
-formula's H count with a warning.  Every error names the offending token and
-its 1-based position in the text.
+formula's H count with a warning.  A signal annotated as the solvent, water or
+an impurity (``7.26 (CHCl3)``, ``1.56 (br s, H2O)``, ``(solvent)``) needs no H
+count and is set aside (:attr:`PeakList.set_aside`), not counted.  Every error
+names the offending token and its 1-based position in the text.
 
 Tables (CSV/TSV, JCAMP-DX) are read into the same :class:`RawH1` rows and
 finished by :func:`finish_h1`, so every input route gives the same signals.
@@ -24,7 +26,13 @@ from dataclasses import dataclass, field
 from typing import Any, Sequence
 
 from elucidate.errors import InputError
-from elucidate.model import C13Signal, Formula, H1Signal, multiplicity_pattern
+from elucidate.model import C13Signal, Formula, H1Signal, SetAside, multiplicity_pattern
+from elucidate.parse.annotations import (
+    mentioned_substance,
+    read_annotation,
+    set_aside_record,
+    set_aside_warnings,
+)
 from elucidate.parse.formula import MAX_HEAVY_ATOMS
 from elucidate.parse.lexing import (
     DEPT_LABELS,
@@ -54,6 +62,8 @@ __all__ = [
     "read_c13_text",
     "finish_h1",
     "finish_c13",
+    "h1_peak_list",
+    "c13_peak_list",
 ]
 
 #: Accepted 1H shifts (ppm); outside this the list is probably not 1H.
@@ -117,27 +127,42 @@ class RawH1:
     text: str = ""
     where: str = ""
     notes: list[str] = field(default_factory=list)
+    set_aside: str | None = None  # the annotation (``CHCl3``, ``solvent``) if it is not the compound's
 
 
 @dataclass
 class RawC13:
-    """One 13C signal as read."""
+    """One 13C signal as read.
+
+    ``letter`` is an off-resonance multiplicity (s/d/t/q) that set
+    ``attached_h``; ``has_j`` says the details gave a J (a C–F/C–P coupling).
+    """
 
     shift: float
     carbons: int = 1
     attached_h: int | None = None
     text: str = ""
     where: str = ""
+    set_aside: str | None = None
+    letter: str | None = None
+    has_j: bool = False
+    notes: list[str] = field(default_factory=list)
 
 
 @dataclass(frozen=True)
 class PeakList:
-    """Result of reading a peak list: signals, warnings, and what the header said."""
+    """Result of reading a peak list: signals, warnings, and what the header said.
+
+    ``set_aside`` holds the signals annotated as solvent, water or an
+    impurity (their reasons judged with the header's solvent); their
+    warnings are not in ``warnings`` (see :func:`set_aside_warnings`).
+    """
 
     signals: tuple[Any, ...]
     warnings: tuple[str, ...] = ()
     field_mhz: float | None = None
     solvent: str | None = None
+    set_aside: tuple[SetAside, ...] = ()
 
 
 # ----------------------------------------------------------- public entries
@@ -173,7 +198,7 @@ def parse_h1(text: str, *, formula: Formula | None = None) -> tuple[tuple[H1Sign
     [(4.12, 'q', (7.1,), 2.0), (2.05, 's', (), 3.0), (1.26, 't', (7.1,), 3.0)]
     """
     peaks = read_h1_text(text, formula=formula)
-    return peaks.signals, list(peaks.warnings)
+    return peaks.signals, list(peaks.warnings) + _set_aside_notes(peaks)
 
 
 def parse_c13(text: str) -> tuple[tuple[C13Signal, ...], list[str]]:
@@ -190,7 +215,14 @@ def parse_c13(text: str) -> tuple[tuple[C13Signal, ...], list[str]]:
     [(171.1, 0), (60.4, 2), (21.0, None), (14.2, 3)]
     """
     peaks = read_c13_text(text)
-    return peaks.signals, list(peaks.warnings)
+    return peaks.signals, list(peaks.warnings) + _set_aside_notes(peaks)
+
+
+def _set_aside_notes(peaks: PeakList) -> list[str]:
+    from elucidate.parse.solvents import normalise_solvent
+
+    solvent = normalise_solvent(peaks.solvent)[0] if peaks.solvent else None
+    return set_aside_warnings(peaks.set_aside, solvent)
 
 
 def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
@@ -204,8 +236,7 @@ def read_h1_text(text: str, *, formula: Formula | None = None) -> PeakList:
     raws = [_h1_signal(chunk, pos) for chunk, pos in chunks]
     if not raws:
         raise InputError("1H list is empty: no signals found (expected e.g. '7.26 (s, 5H)')")
-    signals, warnings = finish_h1(raws, formula)
-    return PeakList(signals, tuple(notes + warnings), field_mhz, solvent)
+    return h1_peak_list(raws, formula, notes, field_mhz, solvent)
 
 
 def read_c13_text(text: str) -> PeakList:
@@ -221,8 +252,40 @@ def read_c13_text(text: str) -> PeakList:
         raws.extend(_c13_chunk(chunk, pos))
     if not raws:
         raise InputError("13C list is empty: no shifts found (expected e.g. '171.1, 60.4, 21.0')")
+    return c13_peak_list(raws, notes, solvent)
+
+
+def h1_peak_list(
+    raws: Sequence[RawH1],
+    formula: Formula | None,
+    notes: Sequence[str] = (),
+    field_mhz: float | None = None,
+    solvent: str | None = None,
+) -> PeakList:
+    """Finish raw 1H rows into a :class:`PeakList`, the annotated ones set aside."""
+    signals, warnings = finish_h1(raws, formula)
+    aside = _set_aside("1H", [(r.low, r.high, r.text, r.set_aside, r.where) for r in raws], solvent)
+    return PeakList(signals, tuple(list(notes) + warnings), field_mhz, solvent, aside)
+
+
+def c13_peak_list(raws: Sequence[RawC13], notes: Sequence[str] = (), solvent: str | None = None) -> PeakList:
+    """Finish raw 13C rows into a :class:`PeakList`, the annotated ones set aside."""
     signals, warnings = finish_c13(raws)
-    return PeakList(signals, tuple(notes + warnings), None, solvent)
+    aside = _set_aside("13C", [(r.shift, r.shift, r.text, r.set_aside, r.where) for r in raws], solvent)
+    return PeakList(signals, tuple(list(notes) + warnings), None, solvent, aside)
+
+
+def _set_aside(
+    nucleus: str, rows: list[tuple[float, float, str, str | None, str]], solvent: str | None
+) -> tuple[SetAside, ...]:
+    from elucidate.parse.solvents import normalise_solvent
+
+    name = normalise_solvent(solvent)[0] if solvent else None
+    return tuple(
+        set_aside_record(nucleus, round((lo + hi) / 2, 4), text, label, where, name)
+        for lo, hi, text, label, where in rows
+        if label is not None
+    )
 
 
 def _until_other_data(chunks: list[tuple[str, int]], what: str) -> tuple[list[tuple[str, int]], list[str]]:
@@ -245,6 +308,16 @@ def finish_h1(raws: Sequence[RawH1], formula: Formula | None) -> tuple[tuple[H1S
     if not raws:
         raise InputError("1H list is empty: no signals")
     warnings: list[str] = []
+    for raw in raws:
+        if raw.set_aside is not None:
+            _check_h1_shift(raw)
+    kept = [raw for raw in raws if raw.set_aside is None]
+    if not kept:
+        raise InputError(
+            f"1H list: every signal is annotated as solvent, water or an impurity "
+            f"(e.g. '{short(raws[0].text)}' at {raws[0].where}); no signal of the compound is left"
+        )
+    raws = kept
     for raw in raws:
         _check_h1_raw(raw)
         warnings.extend(raw.notes)
@@ -289,19 +362,50 @@ def finish_c13(raws: Sequence[RawC13]) -> tuple[tuple[C13Signal, ...], list[str]
     if not raws:
         raise InputError("13C list is empty: no shifts")
     lo, hi = C13_SHIFT_RANGE
-    out = []
     for raw in raws:
-        if not lo <= raw.shift <= hi:
+        if not (math.isfinite(raw.shift) and lo <= raw.shift <= hi):
             raise InputError(
                 f"13C shift '{raw.shift:g}' at {raw.where} is outside the 13C range ({lo:g} to {hi:g} ppm)"
             )
+    kept = [raw for raw in raws if raw.set_aside is None]
+    if not kept:
+        raise InputError(
+            f"13C list: every signal is annotated as solvent or an impurity "
+            f"(e.g. '{short(raws[0].text)}' at {raws[0].where}); no signal of the compound is left"
+        )
+    warnings: list[str] = [note for raw in kept for note in raw.notes]
+    warnings.extend(_letters_in_coupled_list(kept))
+    out = []
+    for raw in kept:
         if not 1 <= raw.carbons <= MAX_HEAVY_ATOMS:
             raise InputError(
                 f"13C carbon count '{raw.carbons}' at {raw.where} must be 1 to {MAX_HEAVY_ATOMS}"
             )
         out.append(C13Signal(raw.shift, raw.carbons, raw.attached_h, raw.text))
     out.sort(key=lambda s: -s.shift)
-    return tuple(out), []
+    return tuple(out), warnings
+
+
+def _letters_in_coupled_list(raws: Sequence[RawC13]) -> list[str]:
+    """Off-resonance letters are attached-H counts only in a list that gives no J.
+
+    In a list where some signals carry J values (C–F or C–P couplings), a
+    bare ``d`` or ``q`` may be a coupling whose J was left out: such letters
+    are not read as attached H (common practice: DEPT labels are
+    unambiguous, multiplicity letters are not).
+    """
+    if not any(r.has_j for r in raws):
+        return []
+    dropped = [r for r in raws if r.letter is not None and not r.has_j]
+    for r in dropped:
+        r.attached_h = None
+    if not dropped:
+        return []
+    shown = ", ".join(f"{r.shift:g} ({r.letter})" for r in dropped[:4]) + (" …" if len(dropped) > 4 else "")
+    return [
+        f"13C list: the letters at {shown} were not read as attached-H counts because other "
+        "signals give J values (C–F or C–P couplings); write CH3/CH2/CH/C to give the carbon type"
+    ]
 
 
 # --------------------------------------------------------------- header
@@ -512,16 +616,33 @@ def _h1_details(raw: RawH1, body: str, body_pos: int, chunk: str, where: str) ->
             integral = _integral_value(part, part, at, absolute=False)
             absolute = False
             continue
-        # 5. anything after the H count is the assignment
+        # 5. the solvent, water or an impurity: the signal is set aside
+        note = read_annotation(part)
+        if note is not None:
+            raw.set_aside = raw.set_aside or note.label
+            continue
+        # 6. anything after the H count is the assignment
         if integral is not None:
             assignment.append(part)
             continue
         raise InputError(
             f"{what}: '{short(part)}' at {at} is not a multiplicity, a J value or an H count"
         )
+    if raw.set_aside is not None:
+        raw.multiplicity = label or ("s" if raw.broad else "m")
+        raw.integral = integral or 0.0
+        raw.absolute = absolute
+        raw.assignment = ", ".join(assignment) if assignment else None
+        return
     if integral is None:
         raise InputError(
             f"{what}: signal '{short(chunk)}' at {where} has no H count (e.g. '2H')"
+        )
+    named = mentioned_substance(", ".join(assignment)) if assignment else None
+    if named:
+        raw.notes.append(
+            f"1H signal '{short(chunk)}' at {where} names {named} beside other text: kept as a "
+            f"signal of the compound (a signal written as only '({named})' would be set aside)"
         )
     if not label:
         if raw.broad:
@@ -551,13 +672,17 @@ def _integral_value(number: str, token: str, at: str, *, absolute: bool) -> floa
     return value
 
 
-def _check_h1_raw(raw: RawH1) -> None:
+def _check_h1_shift(raw: RawH1) -> None:
     lo, hi = H1_SHIFT_RANGE
     for value in (raw.low, raw.high):
         if not (math.isfinite(value) and lo <= value <= hi):
             raise InputError(
                 f"1H shift '{value:g}' at {raw.where} is outside the 1H range ({lo:g} to {hi:g} ppm)"
             )
+
+
+def _check_h1_raw(raw: RawH1) -> None:
+    _check_h1_shift(raw)
     if not (math.isfinite(raw.integral) and raw.integral > 0):
         raise InputError(f"1H integral '{raw.integral:g}' at {raw.where} must be a positive number")
     limit = MAX_H_PER_SIGNAL if raw.absolute else MAX_RELATIVE_INTEGRAL
@@ -638,9 +763,13 @@ def _h_counts(raws: Sequence[RawH1], formula: Formula | None) -> tuple[list[floa
 # ------------------------------------------------------------------- 13C
 
 
-# "2C", "2 C", "x2", "2x", "2 x CH" (× already turned into x; lower case)
+# "2C", "2 C", "x2", "2x", "2 x CH", "2CH", "2 CH3", "CH3 x 2" (× already turned into x; lower case)
+_C13_TYPE = r"(?:ch3|ch2|ch|cq|c)"
 _CARBON_COUNT = re.compile(
-    r"([0-9]{1,6})\s*c|x\s*([0-9]{1,6})|([0-9]{1,6})\s*x|([0-9]{1,6})\s*x\s*(ch3|ch2|ch|cq|c)"
+    r"(?P<n1>[0-9]{1,6})\s*c"
+    r"|x\s*(?P<n2>[0-9]{1,6})|(?P<n3>[0-9]{1,6})\s*x"
+    r"|(?P<n4>[0-9]{1,6})\s*(?:x\s*)?(?P<t1>" + _C13_TYPE + r")"
+    r"|(?P<t2>" + _C13_TYPE + r")\s*x\s*(?P<n5>[0-9]{1,6})"
 )
 
 
@@ -673,27 +802,61 @@ def _c13_chunk(chunk: str, pos: int) -> list[RawC13]:
     return out
 
 
+def _c13_key(part: str) -> str:
+    """A 13C detail in comparison form: lower case, × as x, subscripts as digits."""
+    key = part.lower().replace("×", " x ").replace("₃", "3").replace("₂", "2")
+    return " ".join(key.split())
+
+
 def _c13_details(raw: RawC13, body: str, body_pos: int) -> None:
     parts = _split_flat(body, body_pos)
-    has_j = any(J_START_RE.fullmatch(p) for p, _ in parts)
+    raw.has_j = any(J_START_RE.fullmatch(p) for p, _ in parts)
+    dept: tuple[int, str] | None = None  # (attached H, as written)
+    count: str | None = None
+    letter: tuple[str, str] | None = None
     for part, ppos in parts:
         at = f"position {ppos + 1}"
-        key = " ".join(part.lower().replace("×", " x ").split())
+        key = _c13_key(part)
         if not key:
             continue
         m = _CARBON_COUNT.fullmatch(key)
+        label = None
         if m:
-            digits = next(g for g in m.groups()[:4] if g)
-            raw.carbons = int(digits)
-            if m.group(5):
-                raw.attached_h = DEPT_LABELS[m.group(5)]
+            digits = next(g for g in (m.group(f"n{i}") for i in range(1, 6)) if g)
+            if count is not None and int(digits) != raw.carbons:
+                raise InputError(
+                    f"13C list: carbon count '{part}' at {at} contradicts '{count}' in the same signal"
+                )
+            raw.carbons, count = int(digits), part
             if not 1 <= raw.carbons <= MAX_HEAVY_ATOMS:
                 raise InputError(f"13C list: carbon count '{part}' at {at} must be 1 to {MAX_HEAVY_ATOMS}")
+            label = m.group("t1") or m.group("t2")
+            if label is None:
+                continue
+        elif key in DEPT_LABELS:
+            label = key
+        if label is not None:
+            h = DEPT_LABELS[label]
+            if dept is not None and dept[0] != h:
+                raise InputError(
+                    f"13C list: carbon type '{part}' at {at} contradicts '{dept[1]}' in the same signal"
+                )
+            dept = (h, part)
             continue
-        if key in DEPT_LABELS:
-            raw.attached_h = DEPT_LABELS[key]
+        if key in OFF_RESONANCE_H and not raw.has_j:
+            letter = (key, part)
             continue
-        if key in OFF_RESONANCE_H and not has_j:
-            raw.attached_h = OFF_RESONANCE_H[key]
+        if read_annotation(part) is not None:
+            raw.set_aside = raw.set_aside or " ".join(part.split())
             continue
-        # anything else (assignments such as C=O, J to F/P, solvent notes) is kept in the text only
+        # anything else (assignments such as C=O, J to F/P) is kept in the text only
+    if dept is not None:
+        raw.attached_h = dept[0]
+        if letter is not None and OFF_RESONANCE_H[letter[0]] != dept[0]:
+            raw.notes.append(
+                f"13C signal at {raw.where}: '{letter[1]}' does not match the carbon type "
+                f"'{dept[1]}'; the carbon type is used"
+            )
+    elif letter is not None:
+        raw.attached_h = OFF_RESONANCE_H[letter[0]]
+        raw.letter = letter[1]

@@ -84,8 +84,23 @@ def readback_text(problem: Problem) -> str:
             for i, s in enumerate(problem.c13, start=1)
         ]
         lines.extend(_table(("#", "shift", "nC", "type"), c_rows))
+        lines.append(
+            "13C complete " + (
+                "yes (every distinct carbon has its own line)" if problem.c13_complete
+                else "not stated (lines may overlap)"
+            )
+        )
     else:
         lines.append("13C signals  none given")
+    lines.append("")
+    if problem.set_aside:
+        lines.append(f"Set aside    {len(problem.set_aside)} (not signals of the compound)")
+        lines.extend(
+            f"  - {a.nucleus} {a.text}: {a.reason}" + (f" ({a.where})" if a.where else "")
+            for a in problem.set_aside
+        )
+    else:
+        lines.append("Set aside    none")
     lines.append("")
     lines.append(f"Require      {'; '.join(problem.require) if problem.require else 'none'}")
     lines.append(f"Forbid       {'; '.join(problem.forbid) if problem.forbid else 'none'}")

@@ -10,6 +10,9 @@ parser's, so a table and a characterisation line give identical signals.
 or a relative ``integral``, and an optional assignment.
 13C columns: shift, the carbon count (``nC``, ``carbons``) and the DEPT type
 (``CH3``/``CH2``/``CH``/``C``, or 3/2/1/0 attached H).
+
+A row whose assignment is the solvent, water or an impurity (``CHCl3``,
+``solvent``, ``impurity``, ``H2O``) is set aside: it needs no H count.
 """
 
 from __future__ import annotations
@@ -21,6 +24,7 @@ from dataclasses import dataclass
 from typing import Mapping
 
 from elucidate.errors import InputError
+from elucidate.parse.annotations import read_annotation
 from elucidate.parse.formula import MAX_HEAVY_ATOMS
 from elucidate.parse.lexing import (
     DEPT_LABELS,
@@ -239,6 +243,12 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
     mult_cell = row.get("mult", "")
     notes: list[str] = []
     broad = apparent = False
+    aside = _annotation(row)
+    if aside is not None and "nh" not in row and "integral" not in row:
+        mult = normalise_multiplicity(mult_cell) if mult_cell else None
+        label = (mult.label if mult else "") or "m"
+        text = f"{short(row.get('shift') or row.get('range') or row.get('low', ''))} ({aside})"
+        return RawH1(a, b, label, [], 0.0, True, text=text, where=where, set_aside=aside)
     if mult_cell:
         mult = normalise_multiplicity(mult_cell)
         if mult is None:
@@ -272,10 +282,19 @@ def row_to_h1(row: Mapping[str, str], where: str, *, decimal_comma: bool = False
     else:
         raise InputError(f"{where}: no H count or integral (add a column 'nH' or 'integral')")
     text = ", ".join(f"{k}={v}" for k, v in row.items())
+    if aside is not None:
+        text = f"{short(row.get('shift') or row.get('range') or row.get('low', ''))} ({aside})"
     return RawH1(
         a, b, label, couplings, integral, absolute, broad, apparent,
-        row.get("assignment") or None, text, where, notes,
+        row.get("assignment") or None, text, where, notes, aside,
     )
+
+
+def _annotation(row: Mapping[str, str]) -> str | None:
+    """The assignment cell, when it names the solvent, water or an impurity."""
+    cell = row.get("assignment", "")
+    note = read_annotation(cell) if cell else None
+    return note.label if note is not None else None
 
 
 def row_to_c13(row: Mapping[str, str], where: str, *, decimal_comma: bool = False) -> RawC13:
@@ -294,6 +313,11 @@ def row_to_c13(row: Mapping[str, str], where: str, *, decimal_comma: bool = Fals
         carbons = int(value)
     attached: int | None = None
     dept = row.get("dept", "").strip()
+    aside = _annotation(row)
+    if aside is None and dept and read_annotation(dept) is not None:
+        aside, dept = " ".join(dept.split()), ""
+    if aside is not None:
+        return RawC13(shift, carbons, None, f"{short(cell)} ({aside})", where, set_aside=aside)
     if dept:
         key = " ".join(dept.lower().split())
         if key in DEPT_LABELS:

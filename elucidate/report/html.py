@@ -800,6 +800,14 @@ def _input_echo(problem: Problem) -> str:
             '<table class="input"><thead><tr><th class="num">13C δ / ppm</th><th class="num">carbons</th>'
             f"<th>DEPT</th></tr></thead><tbody>{c_rows}</tbody></table>"
         )
+        if problem.c13_complete:
+            parts.append("<p>13C list stated complete: every distinct carbon has its own line.</p>")
+    if problem.set_aside:
+        parts.append(
+            "<p>Set aside (annotated as solvent, water or an impurity; not signals of the compound):</p><ul>"
+            + "".join(f"<li>{escape(a.nucleus)} {escape(a.text)}: {escape(a.reason)}</li>" for a in problem.set_aside)
+            + "</ul>"
+        )
     if problem.warnings:
         parts.append("<ul>" + "".join(f"<li>Warning: {escape(w)}</li>" for w in problem.warnings) + "</ul>")
     return "".join(parts)

@@ -354,10 +354,22 @@ def predict_command(
 
 
 TopOpt = Annotated[int, typer.Option("--top", help="Number of ranked candidates to show.", min=1)]
+#: Default wall-clock limit of solve/explain (seconds); --time-limit 0 for none.
+DEFAULT_TIME_LIMIT_S = 60.0
+
 TimeLimitOpt = Annotated[
-    Optional[float],
-    typer.Option("--time-limit", help="Stop the search after this many seconds (best so far are shown)."),
+    float,
+    typer.Option(
+        "--time-limit",
+        help="Stop the search after this many seconds and show the best so far, flagged incomplete "
+        "(0: no limit).",
+        min=0.0,
+    ),
 ]
+
+
+def _time_limit(value: float) -> float | None:
+    return None if value == 0 else value
 MaxStructuresOpt = Annotated[
     Optional[int],
     typer.Option("--max-structures", help="Stop after generating this many structures.", min=1),
@@ -448,7 +460,7 @@ def solve_command(
     forbid: ForbidOpt = None,
     c13_complete: C13CompleteOpt = None,
     top: TopOpt = 10,
-    time_limit: TimeLimitOpt = None,
+    time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
     report: ReportOpt = None,
     sdf: SdfOpt = None,
@@ -467,7 +479,8 @@ def solve_command(
     problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
     with stderr_progress() as progress:
         result = solve(
-            problem, top=top, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+            problem, top=top, time_limit_s=_time_limit(time_limit), max_structures=max_structures,
+            progress=progress,
         )
     if not result.complete:
         warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
@@ -494,7 +507,7 @@ def explain_command(
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
     c13_complete: C13CompleteOpt = None,
-    time_limit: TimeLimitOpt = None,
+    time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
     report: ReportOpt = None,
     sdf: SdfOpt = None,
@@ -515,7 +528,8 @@ def explain_command(
     problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
     with stderr_progress() as progress:
         explanation = explain(
-            problem, smiles, time_limit_s=time_limit, max_structures=max_structures, progress=progress
+            problem, smiles, time_limit_s=_time_limit(time_limit), max_structures=max_structures,
+            progress=progress,
         )
     _deliver(explanation, report, sdf, json_out, write_explain_html, write_explain_sdf, render_explain)
 

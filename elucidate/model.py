@@ -370,6 +370,8 @@ class SolveResult(_JsonMixin):
     elapsed_s: float = 0.0  # not in JSON: output is byte-for-byte deterministic
     warnings: tuple[str, ...] = ()
     stopped_by: str | None = None
+    not_searched: tuple[str, ...] = ()  # hypotheses / levels a limit left unsearched
+    evidence: tuple[str, ...] = ()  # the hard evidence constraints, in words
 
     def to_json(self) -> dict[str, Any]:
         out = self.problem.formula.to_json()
@@ -377,6 +379,8 @@ class SolveResult(_JsonMixin):
             {
                 "complete": self.complete,
                 "stopped_by": self.stopped_by,
+                "not_searched": list(self.not_searched),
+                "evidence": list(self.evidence),
                 "relaxed": list(self.relaxed),
                 "counts": dict(self.counts),
                 "candidates": [c.to_json() for c in self.candidates],

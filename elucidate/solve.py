@@ -659,6 +659,8 @@ def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
         counts=result_counts,
         warnings=tuple(warnings),
         stopped_by=run.stopped_by,
+        not_searched=tuple(run.not_searched),
+        evidence=tuple(f"{e.title}: {e.describe()}" for e in run.evidence),
     )
 
 

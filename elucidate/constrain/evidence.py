@@ -339,10 +339,10 @@ class CarbonLineCount(Evidence):
 def _carbon_classes(mol: Any) -> tuple[int, int]:
     """(symmetry classes of carbon, classes real spectra may show as two lines).
 
-    Two equivalent carbons on a common non-aromatic neighbour (the methyls of
-    an isopropyl or gem-dimethyl group next to a stereocentre, the N-methyls
-    of an amide, the methyls of a C=C(CH3)2) may give two lines (common
-    practice); so may a pair bonded to such a pair (N,N-diethyl amides).
+    Two equivalent methyls on a common non-aromatic neighbour (those of an
+    isopropyl or gem-dimethyl group near a stereocentre, the N-methyls of an
+    amide, the methyls of a C=C(CH3)2) may give two lines (common practice);
+    so may an acyclic pair bonded to such a pair.
     """
     from rdkit import Chem
 
@@ -354,12 +354,14 @@ def _carbon_classes(mol: Any) -> tuple[int, int]:
     pairs = [m for m in members.values() if len(m) == 2]
     can_split: set[tuple[int, int]] = set()
     for a, b in pairs:
+        if mol.GetAtomWithIdx(a).GetTotalNumHs() != 3:
+            continue
         na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
         nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
         if any(not mol.GetAtomWithIdx(x).GetIsAromatic() for x in na & nb):
             can_split.add((a, b))
     for a, b in pairs:
-        if (a, b) in can_split:
+        if (a, b) in can_split or mol.GetAtomWithIdx(a).IsInRing():
             continue
         na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
         nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}

@@ -213,7 +213,7 @@ def isomers(
 
     from elucidate.errors import LimitReached
     from elucidate.generate import Limits, Options, Spec, Stats, count, generate
-    from elucidate.generate.isomers import parts_smiles, validate_spec
+    from elucidate.generate.isomers import part_args, parts_smiles, validate_spec
     from elucidate.parse import parse_formula
 
     spec = Spec(
@@ -244,7 +244,7 @@ def isomers(
         nparts = workers * 8
         n = 0
         with ProcessPoolExecutor(max_workers=workers) as pool:
-            args = [(spec, limits, (i, nparts)) for i in range(nparts)]
+            args = part_args(spec, limits, nparts)
             for part, st in pool.map(parts_smiles, args):
                 stats.add(st)
                 for s in part:

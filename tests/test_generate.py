@@ -234,6 +234,43 @@ def test_limits_stop_and_say_so() -> None:
     assert st2.stopped_by == "max_structures"
 
 
+# A fixed-H spec with 12 heavy atoms whose full search takes about a minute:
+# CH3, seven CH, two C, CH2 and one O (C11H12O).
+BIG_FIXED = Spec(
+    F("C11H12O"),
+    atoms=(AtomSpec("C", 3), *[AtomSpec("C", 1)] * 7, AtomSpec("C", 0), AtomSpec("C", 0),
+           AtomSpec("C", 2), AtomSpec("O", 0)),
+)
+
+
+def test_time_limit_stops_a_big_search_and_says_so() -> None:
+    from elucidate.generate import isomers
+
+    isomers._skeleton_list.cache_clear()  # skeleton enumeration itself must see the limit
+    st = Stats()
+    n = count(BIG_FIXED, limits=Limits(time_limit_s=0.5), stats=st)
+    assert st.stopped_by == "time_limit" and 0 <= n == st.emitted
+    st2 = Stats()
+    got: list[str] = []
+    with pytest.raises(LimitReached, match="time limit"):
+        for s in generate(BIG_FIXED, limits=Limits(time_limit_s=0.5), stats=st2):
+            got.append(s)
+    assert st2.stopped_by == "time_limit" and len(got) == st2.emitted
+    st3 = Stats()
+    count(BIG_FIXED, limits=Limits(time_limit_s=0.5), workers=2, stats=st3)
+    assert st3.stopped_by == "time_limit"
+
+
+def test_stopped_search_leaves_no_partial_skeleton_list() -> None:
+    from elucidate.generate import isomers
+
+    isomers._skeleton_list.cache_clear()
+    st = Stats()
+    count(Spec(F("C8H10")), limits=Limits(time_limit_s=0.001), stats=st)
+    assert st.stopped_by == "time_limit"
+    assert count(Spec(F("C8H10"))) == 4678  # trade-facts.md, as in COUNTS
+
+
 def test_output_is_deterministic() -> None:
     assert list(generate(Spec(F("C5H8O")))) == list(generate(Spec(F("C5H8O"))))
 

@@ -139,6 +139,7 @@ def decorate(
     visit: list[int],
     colour_hook: Callable[[tuple[int, ...]], None] | None = None,
     counting: bool = False,
+    tick: Callable[[], None] | None = None,
 ) -> Iterator[tuple[tuple[Label, ...], list[tuple[int, ...]]]]:
     """Every structure on this skeleton, one per orbit, Kekulé partners merged.
 
@@ -153,6 +154,13 @@ def decorate(
     filters : Filters
     visit : list of int
         ``visit[0]`` is incremented per partial structure examined.
+    colour_hook : callable, optional
+        Called with each colouring that reaches bond orders.
+    counting : bool
+        Yield counts instead of lists where no per-structure work is needed.
+    tick : callable, optional
+        Called every few thousand partial structures; may raise to stop
+        (the time limit).
     """
     n = sk.n
     edges = sk.edges
@@ -249,7 +257,7 @@ def decorate(
         lo_env = [max(0, x) for x in lo_env]
         if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
             return
-        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit, tick)
         if not xs:
             return
         prefixes = [set() for _ in range(n)]
@@ -268,6 +276,8 @@ def decorate(
         for i in cands[t]:
             if counts[i]:
                 nvis += 1
+                if tick is not None and not nvis & 4095:
+                    tick()
                 colour[t] = i
                 if exact:
                     ext[t] = labels[i].bs_lo - deg[t]
@@ -314,7 +324,7 @@ def decorate(
     if not exact:
         if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
             return
-        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit)
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit, tick)
         if not xs:
             return
     index: dict[tuple[int, ...], list[int]] | None = None
@@ -377,6 +387,8 @@ def decorate(
             k = len(cand)
             fl = [i for i in cand if i in flagged] if flagged else []
             for i in fl:
+                if tick is not None:
+                    tick()
                 x = xs[i]
                 st = Structure(vlabels, edges, tuple(o + 1 for o in x))
                 if not _kekule_canonical(st, x, eperm, filters):
@@ -402,6 +414,8 @@ def decorate(
             if eperm and any(p(x) < x for p in eperm):  # type: ignore[operator]
                 continue
             if i in flagged:
+                if tick is not None:
+                    tick()
                 st = Structure(vlabels, edges, tuple(o + 1 for o in x))
                 if not _kekule_canonical(st, x, eperm, filters):
                     continue
@@ -457,6 +471,7 @@ def _solutions(
     total: int,
     small_ring: list[bool],
     visit: list[int],
+    tick: Callable[[], None] | None = None,
 ) -> tuple[list[tuple[int, ...]], list[tuple[int, ...]]]:
     """Every extra-bond-order vector (0, 1, 2 per edge) with per-vertex sums
     within [lo, hi] and ``total`` in all; with the per-vertex sums."""
@@ -486,6 +501,8 @@ def _solutions(
         cl = closes[j]
         for o in range(top + 1):
             count += 1
+            if tick is not None and not count & 4095:
+                tick()
             if o == 2 and small_ring[j]:
                 continue
             cur[u] += o

@@ -14,7 +14,7 @@ from __future__ import annotations
 import functools
 import time
 from itertools import product
-from typing import Iterator
+from typing import Callable, Iterator
 
 from elucidate.errors import InputError, LimitReached
 from elucidate.generate.decorate import (
@@ -27,11 +27,11 @@ from elucidate.generate.decorate import (
     structure_smiles,
 )
 from elucidate.generate.fragments import FragmentPlan, plan_fragments
-from elucidate.generate.skeletons import Skeleton, skeletons
+from elucidate.generate.skeletons import Skeleton, iter_skeletons
 from elucidate.generate.spec import Limits, Spec, Stats
 from elucidate.model import VALENCE
 
-__all__ = ["generate", "count", "validate_spec"]
+__all__ = ["generate", "count", "validate_spec", "parts_smiles", "part_args"]
 
 _SUPPORTED = ("C", "H", "N", "O", "S", "P", "F", "Cl", "Br", "I", "Si")
 
@@ -207,34 +207,93 @@ def _label_key(lab: Label) -> tuple:  # type: ignore[type-arg]
     return (lab.symbol, lab.charge, lab.valence, lab.bs_lo, lab.bs_hi, str(lab.nh_sets))
 
 
-@functools.lru_cache(maxsize=64)
-def _skeleton_list(
-    n: int, max_edges: int, caps: tuple[int, ...], girth5: bool, max_ring: int | None
-) -> tuple[Skeleton, ...]:
+class _TimeUp(Exception):
+    """Raised inside the search when the time limit has passed."""
+
+
+def _ticker(deadline: float | None) -> Callable[[], None] | None:
+    """A cheap check to call from long loops: raises :class:`_TimeUp` once
+    ``time.monotonic()`` passes ``deadline`` (None: no limit, no check)."""
+    if deadline is None:
+        return None
+    clock = time.monotonic
+
+    def tick() -> None:
+        if clock() > deadline:
+            raise _TimeUp
+
+    return tick
+
+
+_SkeletonKey = tuple[int, int, tuple[int, ...], bool, "int | None"]
+
+
+class _SkeletonCache:
+    """Complete skeleton lists by parameters (at most ``size``, oldest out).
+
+    A list enters only when its enumeration ran to the end, so a search that
+    a time limit stopped never leaves a partial list behind.
+    """
+
+    def __init__(self, size: int = 64) -> None:
+        self.size = size
+        self._data: dict[_SkeletonKey, tuple[Skeleton, ...]] = {}
+
+    def get(self, key: _SkeletonKey) -> tuple[Skeleton, ...] | None:
+        return self._data.get(key)
+
+    def put(self, key: _SkeletonKey, value: tuple[Skeleton, ...]) -> None:
+        self._data[key] = value
+        while len(self._data) > self.size:
+            del self._data[next(iter(self._data))]
+
+    def cache_clear(self) -> None:
+        self._data.clear()
+
+
+_skeleton_list = _SkeletonCache()
+
+
+def _skeleton_stream(key: _SkeletonKey, tick: Callable[[], None] | None) -> Iterator[Skeleton]:
+    """The skeletons for ``key``, from the cache or streamed as they are made
+    (and cached once complete)."""
+    done = _skeleton_list.get(key)
+    if done is not None:
+        yield from done
+        return
+    n, max_edges, caps, girth5, max_ring = key
     leaves = caps.count(1) if n >= 3 else 0
-    sks = skeletons(n, max_edges, caps, min_edges=n - 1, girth5=girth5, min_leaves=leaves)
-    if max_ring is not None:
-        sks = [
-            s
-            for s in sks
-            if all(r == 0 or r <= max_ring for r in s.edge_smallest_ring)
-        ]
-    return tuple(sks)
+    got: list[Skeleton] = []
+    for s in iter_skeletons(
+        n, max_edges, caps, min_edges=n - 1, girth5=girth5, min_leaves=leaves, tick=tick
+    ):
+        if max_ring is not None and not all(r == 0 or r <= max_ring for r in s.edge_smallest_ring):
+            continue
+        got.append(s)
+        yield s
+    _skeleton_list.put(key, tuple(got))
 
 
-def _work(spec: Spec) -> tuple[list[Problem], list[tuple[int, Skeleton]], FragmentPlan]:
+def _work(
+    spec: Spec, tick: Callable[[], None] | None = None
+) -> tuple[list[Problem], Iterator[tuple[int, Skeleton]], FragmentPlan]:
+    """The label multisets, the stream of (multiset index, skeleton) work
+    items in their fixed order, and the fragment plan."""
     plan = plan_fragments(spec)
     probs = _problems(spec, plan)
-    multiple = _min_multiple_bonds(spec, plan)
-    items: list[tuple[int, Skeleton]] = []
     o = spec.options
-    for pi, prob in enumerate(probs):
-        n = prob.n
-        max_edges = prob.total_bs // 2 - plan.internal_extra - multiple
-        girth5 = o.no_small_rings and not plan.units
-        sks = _skeleton_list(n, max_edges, prob.caps, girth5, None if plan.units else o.max_ring_size)
-        items += [(pi, s) for s in sks]
-    return probs, items, plan
+    multiple = _min_multiple_bonds(spec, plan)
+
+    def items() -> Iterator[tuple[int, Skeleton]]:
+        for pi, prob in enumerate(probs):
+            n = prob.n
+            max_edges = prob.total_bs // 2 - plan.internal_extra - multiple
+            girth5 = o.no_small_rings and not plan.units
+            key = (n, max_edges, prob.caps, girth5, None if plan.units else o.max_ring_size)
+            for s in _skeleton_stream(key, tick):
+                yield pi, s
+
+    return probs, items(), plan
 
 
 def _min_multiple_bonds(spec: Spec, plan: FragmentPlan) -> int:
@@ -262,37 +321,47 @@ def _structures(
     stats: Stats,
     limits: Limits | None,
     counting: bool = False,
+    deadline: float | None = None,
 ) -> Iterator[Structure | int]:
     """Structures of the spec; with ``counting``, plain batch sizes (ints)
-    wherever no per-structure check is needed."""
-    probs, items, plan = _work(spec)
+    wherever no per-structure check is needed.
+
+    ``deadline`` (a ``time.monotonic()`` value) overrides the time limit of
+    ``limits`` (a split search passes one deadline to all its parts).  The
+    time limit is checked inside skeleton enumeration and decoration too, so
+    the search stops promptly wherever it is.
+    """
     if part is not None:
         i, k = part
         if not (0 <= i < k):
             raise InputError(f"part {i} of {k}: need 0 <= i < n")
-        lo, hi = len(items) * i // k, len(items) * (i + 1) // k
-        items = items[lo:hi]
-    o = spec.options
-    filters = Filters(o.no_hetero_hetero, o.no_cumulenes, o.min_ring_triple)
-    req = [_smarts(s) for s in spec.require]
-    forb = [_smarts(s) for s in spec.forbid]
-    checks = tuple(spec.checks)
-    per_structure = bool(req or forb or plan.units or checks)
-    visit = [0]
-    deadline = None
-    if limits is not None and limits.time_limit_s is not None:
+    if deadline is None and limits is not None and limits.time_limit_s is not None:
         deadline = time.monotonic() + limits.time_limit_s
+    tick = _ticker(deadline)
     max_n = limits.max_structures if limits is not None else None
-
-    def colour_seen(_c: tuple[int, ...]) -> None:
-        stats.colourings += 1
-
+    visit = [0]
     try:
+        probs, items, plan = _work(spec, tick)
+        if part is not None:
+            # contiguous blocks of the full list: needs the whole list first
+            whole = list(items)
+            lo, hi = len(whole) * i // k, len(whole) * (i + 1) // k
+            items = iter(whole[lo:hi])
+        o = spec.options
+        filters = Filters(o.no_hetero_hetero, o.no_cumulenes, o.min_ring_triple)
+        req = [_smarts(s) for s in spec.require]
+        forb = [_smarts(s) for s in spec.forbid]
+        checks = tuple(spec.checks)
+        per_structure = bool(req or forb or plan.units or checks)
+        fast = counting and not per_structure
+
+        def colour_seen(_c: tuple[int, ...]) -> None:
+            stats.colourings += 1
+
         for pi, sk in items:
             stats.skeletons += 1
             edges = sk.edges
-            fast = counting and not per_structure
-            for vlabels, xs in decorate(sk, probs[pi], filters, visit, colour_seen, fast):
+            for vlabels, xs in decorate(sk, probs[pi], filters, visit, colour_seen, fast, tick):
                 if fast:
                     k = xs  # type: ignore[assignment]
                     stats.bond_graphs += k
@@ -307,6 +376,7 @@ def _structures(
                     continue
                 stats.bond_graphs += len(xs)
                 for x in xs:
+                    # every finished structure passes here once, before output
                     st: Structure | None = Structure(vlabels, edges, tuple(v + 1 for v in x), None, sk)
                     if plan.units:
                         st = plan.expand(st, spec)  # type: ignore[arg-type]
@@ -326,12 +396,12 @@ def _structures(
                         return
                     stats.emitted += 1
                     yield 1 if counting else st  # type: ignore[misc]
-                if deadline is not None and time.monotonic() > deadline:
-                    stats.stopped_by = "time_limit"
-                    return
-            if deadline is not None and time.monotonic() > deadline:
-                stats.stopped_by = "time_limit"
-                return
+                    if tick is not None:
+                        tick()
+                if tick is not None:
+                    tick()
+    except _TimeUp:
+        stats.stopped_by = "time_limit"
     finally:
         stats.visited += visit[0]
 
@@ -390,11 +460,33 @@ def _generate(
         raise LimitReached(f"stopped by {stats.stopped_by.replace('_', ' ')} after {stats.emitted} structures")
 
 
-def _count_part(args: tuple[Spec, Limits | None, tuple[int, int] | None]) -> tuple[int, Stats]:
-    spec, limits, part = args
+def _part_deadline(wall: float | None) -> float | None:
+    """A ``time.monotonic()`` deadline from a wall-clock one (``time.time()``),
+    which means the same in every process of a pool."""
+    return None if wall is None else time.monotonic() + (wall - time.time())
+
+
+def _wall_deadline(limits: Limits | None) -> float | None:
+    if limits is None or limits.time_limit_s is None:
+        return None
+    return time.time() + limits.time_limit_s
+
+
+def part_args(
+    spec: Spec, limits: Limits | None, nparts: int
+) -> list[tuple[Spec, Limits | None, tuple[int, int], float | None]]:
+    """Arguments for :func:`parts_smiles` (or the count of a part) over a
+    process pool: every part shares one deadline, taken now."""
+    wall = _wall_deadline(limits)
+    return [(spec, limits, (i, nparts), wall) for i in range(nparts)]
+
+
+def _count_part(args: tuple) -> tuple[int, Stats]:  # type: ignore[type-arg]
+    spec, limits, part = args[:3]
+    wall = args[3] if len(args) > 3 else None
     st = Stats()
     k = 0
-    for batch in _structures(spec, part, st, limits, counting=True):
+    for batch in _structures(spec, part, st, limits, counting=True, deadline=_part_deadline(wall)):
         k += batch  # type: ignore[operator]
     return k, st
 
@@ -442,7 +534,7 @@ def count(
     nparts = workers * 4
     total = 0
     with ProcessPoolExecutor(max_workers=workers) as pool:
-        for k, st in pool.map(_count_part, [(spec, limits, (i, nparts)) for i in range(nparts)]):
+        for k, st in pool.map(_count_part, part_args(spec, limits, nparts)):
             total += k
             stats.add(st)
     if limits is not None and limits.max_structures is not None and total > limits.max_structures:
@@ -452,13 +544,20 @@ def count(
     return total
 
 
-def parts_smiles(args: tuple[Spec, Limits | None, tuple[int, int]]) -> tuple[list[str], Stats]:
-    """SMILES of one part (for a process pool); returns the list and the stats."""
-    spec, limits, part = args
-    from rdkit import Chem
+def parts_smiles(args: tuple) -> tuple[list[str], Stats]:  # type: ignore[type-arg]
+    """SMILES of one part (for a process pool); returns the list and the stats.
 
+    ``args`` is ``(spec, limits, part)`` or, from :func:`part_args`,
+    ``(spec, limits, part, wall_deadline)`` so that all parts share one
+    deadline.
+    """
+    spec, limits, part = args[:3]
+    wall = args[3] if len(args) > 3 else None
     st = Stats()
-    out = [structure_smiles(s) for s in _structures(spec, part, st, limits)]  # type: ignore[arg-type]
+    out = [
+        structure_smiles(s)  # type: ignore[arg-type]
+        for s in _structures(spec, part, st, limits, deadline=_part_deadline(wall))
+    ]
     return out, st
 
 

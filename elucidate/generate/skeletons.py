@@ -25,9 +25,9 @@ import functools
 from dataclasses import dataclass, field
 from itertools import combinations
 from operator import itemgetter
-from typing import Callable
+from typing import Callable, Iterator
 
-__all__ = ["Skeleton", "skeletons"]
+__all__ = ["Skeleton", "skeletons", "iter_skeletons"]
 
 
 @dataclass
@@ -333,14 +333,49 @@ def skeletons(
     Returns
     -------
     list of Skeleton
+        In a deterministic order (that of :func:`iter_skeletons`).
+    """
+    return list(
+        iter_skeletons(
+            n, max_edges, caps, min_edges=min_edges, girth5=girth5, on_visit=on_visit,
+            min_leaves=min_leaves,
+        )
+    )
+
+
+def iter_skeletons(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    *,
+    min_edges: int = 0,
+    girth5: bool = False,
+    on_visit: Callable[[int], None] | None = None,
+    min_leaves: int = 0,
+    tick: Callable[[], None] | None = None,
+) -> Iterator[Skeleton]:
+    """Stream the graphs of :func:`skeletons`, depth first, one at a time.
+
+    The canonical-augmentation tree is walked depth first, so the first
+    graphs come out at once and memory stays at one path of the tree.
+
+    Parameters
+    ----------
+    n, max_edges, caps, min_edges, girth5, on_visit, min_leaves
+        As for :func:`skeletons`.
+    tick : callable, optional
+        Called once per parent graph expanded; it may raise to stop the walk
+        (the time limit of a search does so).
+
+    Yields
+    ------
+    Skeleton
         In a deterministic order.
     """
     if n < 1:
-        return []
-    return [
-        Skeleton(n, adj)
-        for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves)
-    ]
+        return
+    for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
+        yield Skeleton(n, adj)
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:
@@ -355,89 +390,116 @@ def _skeletons(
     girth5: bool,
     on_visit: Callable[[int], None] | None,
     min_leaves: int = 0,
-) -> list[tuple[int, ...]]:
+    tick: Callable[[], None] | None = None,
+) -> Iterator[tuple[int, ...]]:
+    if n == 1:
+        yield (0,)
+        return
+
+    def walk(adj: tuple[int, ...], e: int) -> Iterator[tuple[int, ...]]:
+        if tick is not None:
+            tick()
+        kids = _children(adj, e, n, max_edges, caps, min_edges, girth5, on_visit, min_leaves)
+        if len(adj) + 1 == n:
+            for new, e2 in kids:
+                if e2 >= min_edges:
+                    yield new
+        else:
+            for new, e2 in kids:
+                yield from walk(new, e2)
+
+    yield from walk((0,), 0)
+
+
+def _children(
+    adj: tuple[int, ...],
+    e: int,
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    min_edges: int,
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+    min_leaves: int,
+) -> list[tuple[tuple[int, ...], int]]:
+    """The canonical children of one graph (one new vertex each), in order."""
     nw = _nw()
     dmax = caps[0] if caps else 0
-    if n == 1:
-        return [(0,)]
-    level: list[tuple[tuple[int, ...], int]] = [((0,), 0)]
-    for k in range(1, n):
-        nxt: list[tuple[tuple[int, ...], int]] = []
-        rem_after = n - k - 1
-        last = k == n - 1
-        for adj, e in level:
-            deg = [a.bit_count() for a in adj]
-            free = [v for v in range(k) if deg[v] < dmax]
-            maxs = min(dmax, max_edges - e - rem_after)
-            leaves = 0
-            for v in range(k):
-                if deg[v] == 1:
-                    leaves |= 1 << v
-            sib: set[bytes] = set()
-            tried = 0
-            for s in range(1, maxs + 1):
-                if last and e + s < min_edges:
+    k = len(adj)
+    nxt: list[tuple[tuple[int, ...], int]] = []
+    rem_after = n - k - 1
+    last = k == n - 1
+    deg = [a.bit_count() for a in adj]
+    free = [v for v in range(k) if deg[v] < dmax]
+    maxs = min(dmax, max_edges - e - rem_after)
+    leaves = 0
+    for v in range(k):
+        if deg[v] == 1:
+            leaves |= 1 << v
+    sib: set[bytes] = set()
+    tried = 0
+    for s in range(1, maxs + 1):
+        if last and e + s < min_edges:
+            continue
+        for subset in combinations(free, s):
+            tried += 1
+            sm = 0
+            for v in subset:
+                sm |= 1 << v
+            # a leaf that survives is always a better deletion vertex
+            if s > 1 and k >= 2 and (leaves & ~sm):
+                continue
+            if girth5 and not _girth_ok(adj, subset):
+                continue
+            new = list(adj)
+            for v in subset:
+                new[v] |= 1 << k
+            new.append(sm)
+            nd = [a.bit_count() for a in new]
+            if not _fits(nd, caps):
+                continue
+            if min_leaves and k + 1 >= 3 and nd.count(1) < min_leaves - rem_after:
+                continue
+            inv_k = (s, sum(nd[v] for v in subset))
+            ok = True
+            ties: list[int] = []
+            for x in range(k):
+                dx = nd[x]
+                if dx > s:
                     continue
-                for subset in combinations(free, s):
-                    tried += 1
-                    sm = 0
-                    for v in subset:
-                        sm |= 1 << v
-                    # a leaf that survives is always a better deletion vertex
-                    if s > 1 and k >= 2 and (leaves & ~sm):
-                        continue
-                    if girth5 and not _girth_ok(adj, subset):
-                        continue
-                    new = list(adj)
-                    for v in subset:
-                        new[v] |= 1 << k
-                    new.append(sm)
-                    nd = [a.bit_count() for a in new]
-                    if not _fits(nd, caps):
-                        continue
-                    if min_leaves and k + 1 >= 3 and nd.count(1) < min_leaves - rem_after:
-                        continue
-                    inv_k = (s, sum(nd[v] for v in subset))
-                    ok = True
-                    ties: list[int] = []
-                    for x in range(k):
-                        dx = nd[x]
-                        if dx > s:
-                            continue
-                        m = new[x]
-                        sx = 0
-                        while m:
-                            b = m & -m
-                            sx += nd[b.bit_length() - 1]
-                            m ^= b
-                        ix = (dx, sx)
-                        if ix > inv_k:
-                            continue
-                        if dx > 1 and _is_cut(new, k + 1, x):
-                            continue
-                        if ix < inv_k:
-                            ok = False
-                            break
-                        ties.append(x)
-                    if not ok:
-                        continue
-                    g = _nauty_graph(k + 1, new)
-                    if ties:
-                        lab = nw.graph_canonlab(g)
-                        orbits = nw.graph_autgrp(g)[3]
-                        pos = {v: i for i, v in enumerate(lab)}
-                        w = max([*ties, k], key=pos.__getitem__)
-                        if orbits[w] != orbits[k]:
-                            continue
-                    cert = nw.graph_cert(g)
-                    if cert in sib:
-                        continue
-                    sib.add(cert)
-                    nxt.append((tuple(new), e + s))
-            if on_visit is not None:
-                on_visit(tried)
-        level = nxt
-    return [adj for adj, e in level if e >= min_edges]
+                m = new[x]
+                sx = 0
+                while m:
+                    b = m & -m
+                    sx += nd[b.bit_length() - 1]
+                    m ^= b
+                ix = (dx, sx)
+                if ix > inv_k:
+                    continue
+                if dx > 1 and _is_cut(new, k + 1, x):
+                    continue
+                if ix < inv_k:
+                    ok = False
+                    break
+                ties.append(x)
+            if not ok:
+                continue
+            g = _nauty_graph(k + 1, new)
+            if ties:
+                lab = nw.graph_canonlab(g)
+                orbits = nw.graph_autgrp(g)[3]
+                pos = {v: i for i, v in enumerate(lab)}
+                w = max([*ties, k], key=pos.__getitem__)
+                if orbits[w] != orbits[k]:
+                    continue
+            cert = nw.graph_cert(g)
+            if cert in sib:
+                continue
+            sib.add(cert)
+            nxt.append((tuple(new), e + s))
+    if on_visit is not None:
+        on_visit(tried)
+    return nxt
 
 
 def _girth_ok(adj: tuple[int, ...], subset: tuple[int, ...]) -> bool:

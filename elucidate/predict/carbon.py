@@ -49,6 +49,20 @@ def _class(name: str, note: str = "") -> tuple[float, float, tuple[str, ...]]:
     return row["shift"], row["uncertainty"], tuple(d)
 
 
+def _carbocycle(g: MolGraph, c: int) -> tuple[int, ...] | None:
+    """The saturated carbocycle (3 to 7 sp3 carbons) of ``c`` when ``c`` lies in
+    just one ring; fused and bridged ring atoms are left to plain Grant–Paul."""
+    if len(g.atom_rings[c]) != 1:
+        return None
+    best = None
+    for r in g.atom_rings[c]:
+        ring = g.rings[r]
+        if 3 <= len(ring) <= 7 and all(g.sp3[a] for a in ring):
+            if best is None or len(ring) < len(best):
+                best = ring
+    return best
+
+
 def _rule(name: str) -> float:
     return tables.carbon_rules()[name]["value"]
 
@@ -135,14 +149,17 @@ def _sp3(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> tuple[float, 
     # steric corrections
     deg = sum(1 for y in g.nbrs[c] if g.is_sp3_carbon(y))
     steric = tables.carbon_steric()
+    ring = _carbocycle(g, c)
     if deg:
         corr = 0.0
         for y in g.nbrs[c]:
-            if g.is_sp3_carbon(y):
+            if g.is_sp3_carbon(y) and not (ring is not None and y in ring):
                 dy = sum(1 for z in g.nbrs[y] if g.is_sp3_carbon(z))
                 corr += steric.get((min(deg, 4), min(dy, 4)), 0.0)
         if corr:
             terms.append((corr, "steric corrections"))
+    if ring is not None:
+        terms.append((_rule(f"ring_sp3_{len(ring)}"), f"{len(ring)}-membered carbocycle (parent cycloalkane)"))
     unc = 2.5 + (2.0 if g.atom_rings[c] else 0.0)  # Grant–Paul is less good in rings
     cols = ("alpha", "beta", "gamma")
     alpha: list[tuple[int, str]] = []
@@ -202,8 +219,9 @@ def _sp3_corrections(g: MolGraph, c: int, alpha: list[tuple[int, str]],
                 terms.append((_rule(name), "heteroaryl instead of phenyl"))
         elif k == "C=C":
             p = g.double_partner(x)
+            n_sp3 = sum(1 for y in g.nbrs[c] if g.sp3[y])
             for y in g.nbrs[x]:
-                if y != c and y != p and g.el[y] == "C" and (g.sp3[y] or g.arom[y]):
+                if y != c and y != p and g.el[y] == "C" and (g.sp3[y] or g.arom[y]) and n_sp3 <= 1:
                     terms.append((_rule("vinyl_beta"), "further carbon on the alkene carbon"))
             cis = 0.0
             for y in g.nbrs[p]:

@@ -207,6 +207,8 @@ def _sp3_corrections(g: MolGraph, c: int, alpha: list[tuple[int, str]],
                     terms.append((_rule("n_secondary_amine"), "secondary amine (β through N)"))
             elif m > _N_REF[k]:
                 terms.append((_rule("n_extra_substituent") * (m - _N_REF[k]), "further carbon on N (β through N)"))
+        elif k in ("OCOR", "OCOAr") and sum(1 for y in g.nbrs[c] if g.sp3[y]) >= 3:
+            terms.append((_rule("ocor_tertiary"), "tertiary alkyl ester (acylation shift)"))
         elif k == "OAr":
             y = next((z for z in g.nbrs[x] if z != c), -1)
             system = g.aro_system.get(y, frozenset())

@@ -31,6 +31,7 @@ __all__ = [
     "carbon_benzene",
     "carbon_class",
     "carbon_steric",
+    "carbon_rules",
 ]
 
 
@@ -178,3 +179,9 @@ def carbon_steric() -> dict[tuple[int, int], float]:
     """Grant–Paul steric corrections keyed by (observed degree, attached degree)."""
     rows, _ = read_table("carbon_steric.csv")
     return {(int(r["observed"]), int(r["attached"])): float(r["correction"]) for r in rows}
+
+
+@functools.cache
+def carbon_rules() -> dict[str, Row]:
+    """Named 13C rule constants (carbonyl bases and increments, corrections)."""
+    return _keyed("carbon_rules.csv")

@@ -32,7 +32,8 @@ per signal: ``need_j``, ``other_j_max``
     the signal must report a J; every J after the largest is at most this.
 ``[ring]``
     ring H read from the 1H list (see :class:`RingPattern`): every sharp
-    signal in ``window`` is a ring H, their H add up to ``h``; each J is put
+    signal in ``window`` is a ring H (except one with a J of at least
+    ``not_ring_above``, default 10 Hz: an alkene H), their H add up to ``h``; each J is put
     in a coupling class (``classes``, e.g. ortho 7.0-9.6, meta 1.0-3.2 Hz;
     J below ``ignore_below`` are dropped, a J in no class rules the pattern
     out) and the signals must fill the ring's ``positions`` (one string of
@@ -132,6 +133,7 @@ class RingPattern:
     within: tuple[float, float] | None = None
     ignore_below: float = 1.0
     position_shift: tuple[tuple[float, float], ...] | None = None
+    not_ring_above: float = 10.0
 
 
 _UNKNOWN = "unknown"
@@ -178,7 +180,12 @@ def _fits(seen: Counter, pos: Counter, major: tuple[str, ...]) -> bool:
 
 def _ring_match(signals: tuple[H1Signal, ...], ring: RingPattern) -> tuple[int, ...] | None:
     lo, hi = ring.window
-    inside = [i for i, s in enumerate(signals) if lo <= s.shift <= hi and not s.broad]
+    # broad signals are taken for NH/OH, and an H with a J above any ring J
+    # (an alkene H, J 10-18 Hz) is no ring H
+    inside = [
+        i for i, s in enumerate(signals)
+        if lo <= s.shift <= hi and not s.broad and not any(j >= ring.not_ring_above for j in s.couplings)
+    ]
     if sum(round(signals[i].h_count) for i in inside) != ring.h or ring.h != len(ring.positions):
         return None
     if ring.within is not None and not all(ring.within[0] <= signals[i].shift <= ring.within[1] for i in inside):
@@ -339,6 +346,7 @@ def _ring(data: object, where: str) -> RingPattern:
         within=_pair(data["within"], where) if "within" in data else None,
         ignore_below=float(data.get("ignore_below", 1.0)),
         position_shift=shifts,
+        not_ring_above=float(data.get("not_ring_above", 10.0)),
     )
 
 

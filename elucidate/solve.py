@@ -30,7 +30,14 @@ from dataclasses import dataclass, field
 from typing import Any, Callable
 
 from elucidate.constrain.evidence import Evidence, Graph, read_evidence
-from elucidate.constrain.fragments import FragmentMatch, fragment_atoms, match_fragments
+from elucidate.constrain.fragments import (
+    FragmentMatch,
+    by_family,
+    describe_evidence,
+    fragment_atoms,
+    hard_alternatives,
+    match_fragments,
+)
 from elucidate.constrain.groups import Group, Hypothesis, HypothesisSet, proton_groups
 from elucidate.errors import InputError, LimitReached
 from elucidate.model import Candidate, Explanation, Prediction, Problem, Rejection, SolveResult
@@ -349,35 +356,38 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
     hset: HypothesisSet = cache[ckey]
     specs = []
     seen = set()
+    # one spec per hypothesis and per choice of one alternative in each
+    # fragment family (product over families); a pair that cannot host the
+    # chosen fragments is dropped
+    choices = hard_alternatives(hard) if level.hard_fragments else [()]
     for hyp in hset.hypotheses:
         h = hyp if level.neighbour_rules else hyp.without_neighbour_rules()
-        groups = list(h.groups)
-        bare = dict(h.bare)
-        frags = []
-        ok = True
-        require = list(problem.require)
-        if level.hard_fragments:
-            for match in hard:
+        for choice in choices:
+            groups = list(h.groups)
+            bare = dict(h.bare)
+            frags = []
+            ok = True
+            for match in choice:
                 carved = _carve(groups, bare, match)
                 if carved is None:
                     ok = False
                     break
                 groups, bare, frag = carved
                 frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
-        if not ok:
-            continue
-        atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
-        atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
-        spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(require), tuple(problem.forbid),
-                    _options(problem), checks)
-        key = _spec_key(spec)
-        if key in seen:
-            continue
-        seen.add(key)
-        label = "H-count reading: " + h.describe()
-        if frags:
-            label += " with " + ", ".join(f.label or f.smiles for f in frags)
-        specs.append((spec, label))
+            if not ok:
+                continue
+            atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
+            atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
+            spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(problem.require), tuple(problem.forbid),
+                        _options(problem), checks)
+            key = _spec_key(spec)
+            if key in seen:
+                continue
+            seen.add(key)
+            label = "H-count reading: " + h.describe()
+            if frags:
+                label += " with " + ", ".join(f.label or f.smiles for f in frags)
+            specs.append((spec, label))
     return specs, hset.complete
 
 
@@ -550,10 +560,17 @@ def _soft_terms(smiles: str, soft: list[FragmentMatch]) -> tuple[float, tuple[st
     mol = Chem.MolFromSmiles(smiles)
     cost, prior_notes = unusual_groups(smiles)
     notes = list(prior_notes)
-    for m in soft:
-        if not mol.HasSubstructMatch(_fragment_query(m.rule.smiles)):
-            cost += m.rule.weight
+    for alternatives in by_family(soft):
+        # a family counts once: the structure needs one of its alternatives
+        if any(mol.HasSubstructMatch(_fragment_query(m.rule.smiles)) for m in alternatives):
+            continue
+        cost += max(m.rule.weight for m in alternatives)
+        if len(alternatives) == 1:
+            m = alternatives[0]
             notes.append(f"no {m.rule.name} group, which the data suggest ({m.rule.source})")
+        else:
+            names = " or ".join(m.rule.name for m in alternatives)
+            notes.append(f"no {names} ring, one of which the data suggest ({alternatives[0].rule.source})")
     return cost, tuple(notes)
 
 
@@ -756,9 +773,20 @@ def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard
     from rdkit import Chem
 
     mol = Chem.MolFromSmiles(smiles)
-    for m in hard:
-        if not mol.HasSubstructMatch(_fragment_query(m.rule.smiles)):
-            reasons.append(f"the data imply a {m.rule.name} group (hard rule: {m.rule.source}); this structure has none")
+    for alternatives in by_family(hard):
+        if any(mol.HasSubstructMatch(_fragment_query(m.rule.smiles)) for m in alternatives):
+            continue
+        first = alternatives[0]
+        said = f"{first.rule.evidence} ({describe_evidence(first, problem)})"
+        if len(alternatives) == 1:
+            reasons.append(f"{said} imply {first.rule.phrase} (hard rule: {first.rule.source}); this structure has none")
+        else:
+            phrases = [m.rule.phrase for m in alternatives]
+            either = ", ".join(phrases[:-1]) + " or " + phrases[-1]
+            reasons.append(
+                f"{said} imply {either} (the data cannot tell which; hard rule: {first.rule.source}); "
+                "this structure has none of them"
+            )
     for sm in problem.require:
         q = Chem.MolFromSmarts(sm)
         if q is not None and not mol.HasSubstructMatch(q):

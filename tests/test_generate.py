@@ -394,3 +394,17 @@ def test_atom_specs_with_options_match_plain_run() -> None:
             == sorted(atoms)
         }
         assert len(got) == len(set(got)) and set(got) == want and want
+
+
+def test_neighbour_rule_counts_h_on_a_fragment_port_anchor():
+    # construction: but-2-ene, each CH3 a doublet (n+1 rule: its neighbour
+    # carbon carries 1 H), that carbon being a CH of the fragment *[CH]=[CH]*
+    from elucidate.generate import AtomSpec, FragmentSpec, Spec, generate
+    from elucidate.parse import parse_formula
+
+    spec = Spec(
+        parse_formula("C4H8"),
+        (AtomSpec("C", 3, frozenset({1})), AtomSpec("C", 3, frozenset({1}))),
+        (FragmentSpec("*[CH]=[CH]*"),),
+    )
+    assert list(generate(spec)) == ["CC=CC"]

@@ -137,3 +137,63 @@ def test_relaxation_reaches_the_formula_alone():
     result = solve(problem)
     assert any("every isomer of the formula" in step for step in result.relaxed)
     assert sorted(c.smiles for c in result.candidates) == ["CCO", "COC"]
+
+
+# ------------------------------------------------- ring substitution fragments
+# CDCl3 peak lists recalled from memory (literature spectra).
+VERATRALDEHYDE = ("C9H10O3", "9.85 (s, 1H), 7.46 (dd, J = 8.2, 1.9 Hz, 1H), 7.41 (d, J = 1.9 Hz, 1H), "
+                  "6.98 (d, J = 8.2 Hz, 1H), 3.96 (s, 3H), 3.94 (s, 3H)")
+NITROTOLUENE_2 = ("C7H7NO2", "7.95 (d, J = 8.1 Hz, 1H), 7.48 (t, J = 7.5 Hz, 1H), 7.36-7.29 (m, 2H), 2.60 (s, 3H)")
+
+
+@pytest.mark.parametrize("name, formula, h1, truth", [
+    ("3,4-dimethoxybenzaldehyde", *VERATRALDEHYDE, "COc1ccc(C=O)cc1OC"),
+    ("ethyl nicotinate", "C8H9NO2",
+     "9.23 (d, J = 1.6 Hz, 1H), 8.77 (dd, J = 4.9, 1.7 Hz, 1H), 8.30 (dt, J = 7.9, 1.9 Hz, 1H), "
+     "7.39 (dd, J = 7.9, 4.9 Hz, 1H), 4.42 (q, J = 7.1 Hz, 2H), 1.42 (t, J = 7.1 Hz, 3H)", "CCOC(=O)c1cccnc1"),
+    ("trans-anethole", "C10H12O",
+     "7.27 (d, J = 8.7 Hz, 2H), 6.84 (d, J = 8.7 Hz, 2H), 6.36 (dq, J = 15.7, 1.6 Hz, 1H), "
+     "6.10 (dq, J = 15.7, 6.6 Hz, 1H), 3.80 (s, 3H), 1.86 (dd, J = 6.6, 1.6 Hz, 3H)", "CC=Cc1ccc(OC)cc1"),
+    ("2-nitrotoluene", *NITROTOLUENE_2, "Cc1ccccc1[N+](=O)[O-]"),
+])
+def test_ring_fragments_find_the_truth_at_the_strict_level(name, formula, h1, truth):
+    r = solve(load_problem(formula=formula, h1=h1), time_limit_s=300)
+    assert r.candidates[0].smiles == truth
+    assert r.complete and not r.relaxed
+
+
+def test_explain_names_the_ring_pattern():
+    # 3,5-dimethoxybenzaldehyde lacks the 1,2,4 ring the d/dd/d set implies
+    e = explain(load_problem(formula=VERATRALDEHYDE[0], h1=VERATRALDEHYDE[1]), "COc1cc(C=O)cc(OC)c1",
+                time_limit_s=120)
+    assert any(
+        "the aromatic signals (7.46 dd 8.2/1.9, 7.41 d 1.9, 6.98 d 8.2) imply a 1,2,4-trisubstituted benzene ring" in r
+        and "this structure has none" in r
+        for r in e.reasons
+    )
+
+
+def test_explain_names_the_ring_alternatives():
+    # 4-nitrotoluene has neither of the rings 2-nitrotoluene's data allow
+    e = explain(load_problem(formula=NITROTOLUENE_2[0], h1=NITROTOLUENE_2[1]), "Cc1ccc([N+](=O)[O-])cc1",
+                time_limit_s=120)
+    assert any("imply a 1,3-disubstituted benzene ring or a 1,2-disubstituted benzene ring" in r
+               or "imply a 1,2-disubstituted benzene ring or a 1,3-disubstituted benzene ring" in r
+               for r in e.reasons)
+
+
+def test_demoted_family_costs_once():
+    # at the 'no-fragments' level a family turns soft: a structure lacking
+    # every alternative pays one weight, one having any of them pays none
+    from elucidate.constrain.fragments import match_fragments
+    from elucidate.solve import _soft_terms
+
+    p = load_problem(formula=NITROTOLUENE_2[0], h1=NITROTOLUENE_2[1])
+    hard = [m for m in match_fragments(p) if m.rule.strength == "hard"]
+    assert len(hard) == 2
+    base, _ = _soft_terms("Cc1ccc([N+](=O)[O-])cc1", [])
+    para, notes = _soft_terms("Cc1ccc([N+](=O)[O-])cc1", hard)
+    assert para - base == pytest.approx(1.0)
+    assert sum("ring, one of which the data suggest" in n for n in notes) == 1
+    assert _soft_terms("Cc1ccccc1[N+](=O)[O-]", hard)[0] == _soft_terms("Cc1ccccc1[N+](=O)[O-]", [])[0]
+    assert _soft_terms("Cc1cccc([N+](=O)[O-])c1", hard)[0] == _soft_terms("Cc1cccc([N+](=O)[O-])c1", [])[0]

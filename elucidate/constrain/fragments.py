@@ -21,19 +21,59 @@ Pattern keys (all optional):
 ``ring_h``
     for ring fragments matched through the aromatic window: number of
     fragment H taken from those signals.
+``no_elements``
+    the formula must lack these elements (e.g. F and P, whose couplings to
+    H mimic H-H couplings).
+``exclusive_j``
+    ``[lo, hi]``: no other 1H signal with its shift in this window may share a
+    coupling (±0.6 Hz) with a matched signal (a third alkene H sharing a J
+    makes a pair part of a vinyl group or a diene).
+per signal: ``need_j``, ``other_j_max``
+    the signal must report a J; every J after the largest is at most this.
+``[ring]``
+    ring H read from the 1H list (see :class:`RingPattern`): every sharp
+    signal in ``window`` is a ring H (except one with a J of at least
+    ``not_ring_above``, default 10 Hz: an alkene H), their H add up to ``h``; each J is put
+    in a coupling class (``classes``, e.g. ortho 7.0-9.6, meta 1.0-3.2 Hz;
+    J below ``ignore_below`` are dropped, a J in no class rules the pattern
+    out) and the signals must fill the ring's ``positions`` (one string of
+    class letters per ring H: the couplings that H shows).  ``m``,
+    J-less and several-H singlet signals (coincident H) fill any position.
+``family``
+    rules of one family are alternatives: when several match, the solver
+    needs one of them (each is tried in turn); a family with a soft member
+    is soft as a whole.
+``implies``, ``evidence``
+    words for explanations: ``"a 1,2-disubstituted benzene ring"``,
+    ``"the aromatic signals"``.
 """
 
 from __future__ import annotations
 
+import dataclasses
 import functools
+import itertools
 import tomllib
+from collections import Counter
 from dataclasses import dataclass
 
 from elucidate.errors import InputError
 from elucidate.model import H1Signal, Problem
 from elucidate.resources import fragments_root
 
-__all__ = ["SignalPattern", "FragmentRule", "FragmentMatch", "load_fragments", "match_fragments", "fragment_atoms"]
+__all__ = [
+    "SignalPattern",
+    "RingPattern",
+    "FragmentRule",
+    "FragmentMatch",
+    "load_fragments",
+    "match_fragments",
+    "fragment_atoms",
+    "hard_alternatives",
+    "by_family",
+    "describe_evidence",
+    "ring_reading",
+]
 
 _J_SHARE = 0.6  # Hz: two reported J count as the same coupling (common practice)
 
@@ -49,6 +89,8 @@ class SignalPattern:
     same_j: bool = False
     sharp: bool = False
     broad: bool = False
+    need_j: bool = False
+    other_j_max: float | None = None
 
     def accepts(self, s: H1Signal) -> bool:
         if round(s.h_count) != self.h:
@@ -61,10 +103,123 @@ class SignalPattern:
             return False
         if self.broad and not s.broad:
             return False
+        if self.need_j and not s.couplings:
+            return False
         if self.j is not None and s.couplings:
             if not (self.j[0] <= s.couplings[0] <= self.j[1]):
                 return False
+        if self.other_j_max is not None and any(j > self.other_j_max for j in s.couplings[1:]):
+            return False
         return True
+
+
+@dataclass(frozen=True)
+class RingPattern:
+    """Ring H of one substitution pattern, as the 1H list shows them.
+
+    ``positions`` holds one string per ring H naming the classes of the
+    couplings that H shows (``"oom"``: two ortho and one meta partner).
+    Classes in ``major`` must be seen exactly (an ortho J is always
+    resolved); the others may be missing (small J often are).
+    ``position_shift`` optionally gives a shift window per position (the
+    alpha H of a pyridine lies above 7.9 ppm).
+    """
+
+    window: tuple[float, float]
+    h: int
+    classes: tuple[tuple[str, tuple[float, float]], ...]
+    positions: tuple[str, ...]
+    major: tuple[str, ...] = ("o",)
+    within: tuple[float, float] | None = None
+    ignore_below: float = 1.0
+    position_shift: tuple[tuple[float, float], ...] | None = None
+    not_ring_above: float = 10.0
+
+
+_UNKNOWN = "unknown"
+_FAIL = "fail"
+
+
+def ring_reading(s: H1Signal, ring: RingPattern) -> Counter | str:
+    """Coupling classes one ring-H signal shows (per H), ``'unknown'`` when
+    the signal does not tell (``m``, no J, several coincident H as one
+    singlet), ``'fail'`` when a J fits no class.
+
+    Examples
+    --------
+    >>> ring = RingPattern((6.3, 9.3), 1, (("o", (7.0, 9.6)), ("m", (1.0, 3.2))), ("oom",))
+    >>> sorted(ring_reading(H1Signal(7.45, 7.45, 7.45, "ddd", (8.6, 7.2, 1.8), 1, 1), ring).elements())
+    ['m', 'o', 'o']
+    >>> ring_reading(H1Signal(7.3, 7.2, 7.4, "m", (), 2, 2), ring)
+    'unknown'
+    """
+    pattern = s.pattern
+    if pattern is None:
+        return _UNKNOWN
+    if s.multiplicity == "s":
+        return Counter() if round(s.h_count) == 1 else _UNKNOWN
+    js = list(s.couplings)
+    if len(js) != len(pattern):
+        return _UNKNOWN
+    out: Counter = Counter()
+    for lines, j in zip(pattern, js):
+        if j < ring.ignore_below:
+            continue
+        cls = next((name for name, (lo, hi) in ring.classes if lo <= j <= hi), None)
+        if cls is None:
+            return _FAIL
+        out[cls] += lines - 1
+    return out
+
+
+def _fits(seen: Counter, pos: Counter, major: tuple[str, ...]) -> bool:
+    if any(seen[c] != pos[c] for c in major):
+        return False
+    return all(n <= pos[c] for c, n in seen.items())
+
+
+def _ring_match(signals: tuple[H1Signal, ...], ring: RingPattern) -> tuple[int, ...] | None:
+    lo, hi = ring.window
+    # broad signals are taken for NH/OH, and an H with a J above any ring J
+    # (an alkene H, J 10-18 Hz) is no ring H
+    inside = [
+        i for i, s in enumerate(signals)
+        if lo <= s.shift <= hi and not s.broad and not any(j >= ring.not_ring_above for j in s.couplings)
+    ]
+    if sum(round(signals[i].h_count) for i in inside) != ring.h or ring.h != len(ring.positions):
+        return None
+    if ring.within is not None and not all(ring.within[0] <= signals[i].shift <= ring.within[1] for i in inside):
+        return None
+    readings = []
+    for i in inside:
+        r = ring_reading(signals[i], ring)
+        if r == _FAIL:
+            return None
+        readings.append((i, r))
+    # known readings first, more H first: fewer branches
+    readings.sort(key=lambda x: (x[1] == _UNKNOWN, -round(signals[x[0]].h_count), x[0]))
+    pos = [Counter(p) for p in ring.positions]
+    wins = ring.position_shift or tuple((-1.0, 20.0) for _ in ring.positions)
+
+    def place(k: int, free: frozenset[int]) -> bool:
+        if k == len(readings):
+            return not free
+        i, r = readings[k]
+        s = signals[i]
+        n = round(s.h_count)
+        ok = [p for p in sorted(free) if wins[p][0] <= s.shift_high and s.shift_low <= wins[p][1]
+              and (r == _UNKNOWN or _fits(r, pos[p], ring.major))]
+        seen_sets = set()
+        for combo in itertools.combinations(ok, n):
+            key = tuple(sorted((ring.positions[p], wins[p]) for p in combo))
+            if key in seen_sets:
+                continue
+            seen_sets.add(key)
+            if place(k + 1, free - set(combo)):
+                return True
+        return False
+
+    return tuple(sorted(inside)) if place(0, frozenset(range(len(pos)))) else None
 
 
 @dataclass(frozen=True)
@@ -86,6 +241,17 @@ class FragmentRule:
     min_dou: float = 0.0
     min_oxygens: int = 0
     elements: tuple[str, ...] = ()
+    no_elements: tuple[str, ...] = ()
+    exclusive_j: tuple[float, float] | None = None
+    ring: RingPattern | None = None
+    family: str = ""
+    implies: str = ""
+    evidence: str = "the signals"
+
+    @property
+    def phrase(self) -> str:
+        """What the rule's pattern implies, in words."""
+        return self.implies or f"a {self.name} group"
 
 
 @dataclass(frozen=True)
@@ -123,8 +289,11 @@ def _rule(key: str, data: dict) -> FragmentRule:
                 same_j=bool(sp.get("same_j", False)),
                 sharp=bool(sp.get("sharp", False)),
                 broad=bool(sp.get("broad", False)),
+                need_j=bool(sp.get("need_j", False)),
+                other_j_max=float(sp["other_j_max"]) if "other_j_max" in sp else None,
             )
         )
+    ring = _ring(data["ring"], where) if "ring" in data else None
     return FragmentRule(
         key=key,
         name=str(data["name"]),
@@ -141,6 +310,43 @@ def _rule(key: str, data: dict) -> FragmentRule:
         min_dou=float(data.get("min_dou", 0)),
         min_oxygens=int(data.get("min_oxygens", 0)),
         elements=tuple(data.get("elements", ())),
+        no_elements=tuple(data.get("no_elements", ())),
+        exclusive_j=_pair(data["exclusive_j"], where) if "exclusive_j" in data else None,
+        ring=ring,
+        family=str(data.get("family", "")),
+        implies=str(data.get("implies", "")),
+        evidence=str(data.get("evidence", "the aromatic signals" if ring else "the signals")),
+    )
+
+
+def _ring(data: object, where: str) -> RingPattern:
+    if not isinstance(data, dict):
+        raise InputError(f"fragment file {where}: [ring] must be a table")
+    for required in ("window", "h", "classes", "positions"):
+        if required not in data:
+            raise InputError(f"fragment file {where}: [ring] misses key '{required}'")
+    classes = data["classes"]
+    if not isinstance(classes, dict) or not classes or any(len(k) != 1 for k in classes):
+        raise InputError(f"fragment file {where}: [ring] classes must map one-letter names to [low, high]")
+    positions = tuple(str(p) for p in data["positions"])
+    names = set(classes)
+    if len(positions) != int(data["h"]) or any(ch not in names for p in positions for ch in p):
+        raise InputError(f"fragment file {where}: [ring] positions must be h strings of class letters")
+    shifts = None
+    if "position_shift" in data:
+        shifts = tuple(_pair(v, where) for v in data["position_shift"])
+        if len(shifts) != len(positions):
+            raise InputError(f"fragment file {where}: [ring] position_shift needs one window per position")
+    return RingPattern(
+        window=_pair(data["window"], where),
+        h=int(data["h"]),
+        classes=tuple(sorted((k, _pair(v, where)) for k, v in classes.items())),
+        positions=positions,
+        major=tuple(data.get("major", ("o",))),
+        within=_pair(data["within"], where) if "within" in data else None,
+        ignore_below=float(data.get("ignore_below", 1.0)),
+        position_shift=shifts,
+        not_ring_above=float(data.get("not_ring_above", 10.0)),
     )
 
 
@@ -194,7 +400,7 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
     for rule in rules:
         if f["C"] < rule.min_carbons or f.dou < rule.min_dou or f["O"] < rule.min_oxygens:
             continue
-        if any(f[el] == 0 for el in rule.elements):
+        if any(f[el] == 0 for el in rule.elements) or any(f[el] > 0 for el in rule.no_elements):
             continue
         used: list[int] = []
         if rule.aromatic_window is not None:
@@ -208,27 +414,97 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
                 continue
             if not rule.signals:
                 used = inside
-        picked = _pick(problem.h1, rule.signals, ())
+        if rule.ring is not None:
+            ring_used = _ring_match(problem.h1, rule.ring)
+            if ring_used is None:
+                continue
+            used = sorted(set(used) | set(ring_used))
+        picked = _pick(problem.h1, rule.signals, (), rule.exclusive_j)
         if picked is None:
             continue
         out.append(FragmentMatch(rule, tuple(sorted(set(used) | set(picked)))))
+    return _soften_families(out)
+
+
+def _soften_families(matches: list[FragmentMatch]) -> list[FragmentMatch]:
+    """A family whose matched alternatives include a soft one cannot prune:
+    all its members become soft."""
+    soft_families = {m.rule.family for m in matches if m.rule.family and m.rule.strength == "soft"}
+    return [
+        FragmentMatch(dataclasses.replace(m.rule, strength="soft"), m.signals)
+        if m.rule.family in soft_families and m.rule.strength == "hard" else m
+        for m in matches
+    ]
+
+
+def by_family(matches: list[FragmentMatch]) -> list[list[FragmentMatch]]:
+    """Matches grouped into alternatives: one list per family (library
+    order), one single-member list per rule without a family."""
+    groups: dict[str, list[FragmentMatch]] = {}
+    out: list[list[FragmentMatch]] = []
+    for m in matches:
+        if not m.rule.family:
+            out.append([m])
+        elif m.rule.family in groups:
+            groups[m.rule.family].append(m)
+        else:
+            groups[m.rule.family] = [m]
+            out.append(groups[m.rule.family])
     return out
+
+
+def hard_alternatives(hard: list[FragmentMatch]) -> list[tuple[FragmentMatch, ...]]:
+    """Every choice of one alternative per family (the product over
+    families), each with all family-less hard rules.
+
+    Examples
+    --------
+    >>> hard_alternatives([])
+    [()]
+    """
+    return [tuple(combo) for combo in itertools.product(*by_family(hard))]
+
+
+def describe_evidence(match: FragmentMatch, problem: Problem) -> str:
+    """The matched signals as chemists write them: ``7.85 dd 7.9/1.6``."""
+    parts = []
+    for i in match.signals:
+        s = problem.h1[i]
+        where = f"{s.shift_high:.2f}-{s.shift_low:.2f}" if s.shift_high - s.shift_low > 0.05 else f"{s.shift:.2f}"
+        mult = ("br " if s.broad else "") + s.multiplicity
+        js = "/".join(f"{j:g}" for j in s.couplings)
+        parts.append(" ".join(x for x in (where, mult, js) if x))
+    return ", ".join(parts)
 
 
 def _shares_j(a: H1Signal, b: H1Signal) -> bool:
     return any(abs(x - y) <= _J_SHARE for x in a.couplings for y in b.couplings)
 
 
-def _pick(signals: tuple[H1Signal, ...], pats: tuple[SignalPattern, ...], chosen: tuple[int, ...]) -> tuple[int, ...] | None:
+def _exclusive(signals: tuple[H1Signal, ...], chosen: tuple[int, ...], window: tuple[float, float] | None) -> bool:
+    if window is None:
+        return True
+    return not any(
+        window[0] <= s.shift <= window[1] and round(s.h_count) == 1 and _shares_j(s, signals[c])
+        for i, s in enumerate(signals) if i not in chosen for c in chosen
+    )
+
+
+def _pick(
+    signals: tuple[H1Signal, ...],
+    pats: tuple[SignalPattern, ...],
+    chosen: tuple[int, ...],
+    exclusive: tuple[float, float] | None = None,
+) -> tuple[int, ...] | None:
     if len(chosen) == len(pats):
-        return chosen
+        return chosen if _exclusive(signals, chosen, exclusive) else None
     pat = pats[len(chosen)]
     for i, s in enumerate(signals):
         if i in chosen or not pat.accepts(s):
             continue
         if pat.same_j and chosen and not _shares_j(signals[chosen[-1]], s):
             continue
-        got = _pick(signals, pats, chosen + (i,))
+        got = _pick(signals, pats, chosen + (i,), exclusive)
         if got is not None:
             return got
     return None

@@ -197,8 +197,10 @@ def decorate(
                 u |= s  # type: ignore[operator]
             nh_union.append(u)
     need_nh = any(x is not None for x in nh_union)
+    # H on carbon per label; a fragment port stands for its anchor atom (a
+    # carbon anchor such as the CH of *[CH]=[CH]* carries its H)
     carbon_h = [
-        (lab.fixed_h if lab.symbol == "C" and lab.fixed_h is not None else 0) for lab in labels
+        (lab.fixed_h if (lab.symbol == "C" or lab.is_unit) and lab.fixed_h is not None else 0) for lab in labels
     ]
     nplus = [i for i, lab in enumerate(labels) if lab.symbol == "N" and lab.charge == 1]
     ominus = [i for i, lab in enumerate(labels) if lab.symbol == "O" and lab.charge == -1]

@@ -23,16 +23,20 @@ when given).  The model, solved exactly with CP-SAT:
   least ``carbon_min_uncertainty``), plus ``carbon_dept`` when the line's DEPT
   label gives another number of attached H than the carbon has.
 
-The 13C term added to a fit is ``3 · carbon_shift · total / N_C``: three times
-the mean cost per carbon of the formula (the scale the ranking has always
-used, so the term stays comparable with the 1H cost).
+The model minimises ``Σ shift costs / N_C + Σ penalties / N_lines``: the mean
+shift cost per carbon of the formula plus the structural penalties (lines
+without a carbon, carbons without a line, overlaps, splits, counts) per
+observed line; both denominators are the same for every candidate of one
+problem, so the ranking sees a plain weighted sum.  The term added to a fit
+is three times that (``carbon_shift`` = 1), the scale the ranking has always
+used for 13C, so it stays comparable with the 1H cost.
 """
 
 from __future__ import annotations
 
 import functools
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from elucidate.model import C13Assignment, C13Signal, CarbonShift, Prediction, Problem
 
@@ -41,7 +45,7 @@ if TYPE_CHECKING:  # pragma: no cover
 
 __all__ = ["C13Fit", "assign_c13", "c13_bound", "may_split"]
 
-_SCALE = 1000
+_SCALE = 100_000
 #: Up to this many splittable pairs the fast path tries every split subset.
 _MAX_SPLIT_ENUMERATION = 3
 _DEPT_NAMES = {0: "C", 1: "CH", 2: "CH2", 3: "CH3"}
@@ -52,7 +56,8 @@ class C13Fit:
     """The 13C part of a fit.
 
     ``cost`` is the term added to the fit (scaled as the module says);
-    ``total`` the unscaled sum in typical errors; ``clearly_wrong`` is set
+    ``total`` the model's objective (mean shift cost per carbon + penalties
+    per line, in typical errors); ``clearly_wrong`` is set
     when a line is left unexplained, a DEPT label is contradicted or the
     mean cost per carbon is above 3.
     """
@@ -129,8 +134,10 @@ def _per_carbon(c: CarbonShift, line: C13Signal, w: Weights) -> float:
     return cost
 
 
-def _scale(total: float, n_c: int, w: Weights) -> float:
-    return w.carbon_shift * 3.0 * total / max(n_c, 1)
+def _term(shift_sum: float, penalties: float, n_c: int, k: int) -> float:
+    """Mean shift cost per carbon plus structural penalties per line (the
+    model's objective before the factor 3 of the fit)."""
+    return shift_sum / max(n_c, 1) + penalties / max(k, 1)
 
 
 # ------------------------------------------------------------------- bound
@@ -153,15 +160,16 @@ def c13_bound(problem: Problem, prediction: Prediction, w: Weights) -> float:
     split_ok = [may_split(prediction.smiles, c) for c in classes]
     if _fast(lines, split_ok):
         return assign_c13(problem, prediction, w).cost
+    k, n = len(lines), len(classes)
+    n_c = sum(len(c.atoms) for c in classes)
     total = 0.0
     for c in classes:
         best = min(_per_carbon(c, line, w) for line in lines)
-        total += len(c.atoms) * min(best, w.carbon_missing)
+        total += len(c.atoms) * min(best / n_c, w.carbon_missing / k)
     cap = len(classes) + sum(split_ok)
-    k, n = len(lines), len(classes)
-    total += max(0, min(k, cap) - n) * min(w.carbon_split, w.carbon_missing)
-    total += max(0, k - cap) * w.carbon_missing
-    return _scale(total, sum(len(c.atoms) for c in classes), w)
+    total += max(0, min(k, cap) - n) * min(w.carbon_split, w.carbon_missing) / k
+    total += max(0, k - cap) * w.carbon_missing / k
+    return 3.0 * w.carbon_shift * total
 
 
 def _fast(lines: tuple[C13Signal, ...], split_ok: list[bool]) -> bool:
@@ -207,6 +215,11 @@ def _assign_cached(lines: tuple[C13Signal, ...], classes: tuple[CarbonShift, ...
     return _decode(lines, classes, w, q, on, stated, missing)
 
 
+def _weights(classes: tuple[CarbonShift, ...], k: int) -> tuple[float, float]:
+    """Integer-scaled weights of one carbon's shift cost and of one penalty."""
+    return _SCALE / max(sum(len(c.atoms) for c in classes), 1), _SCALE / max(k, 1)
+
+
 def _solve_lsa(
     lines: tuple[C13Signal, ...],
     classes: tuple[CarbonShift, ...],
@@ -229,10 +242,11 @@ def _solve_lsa(
     from ortools.graph.python import linear_sum_assignment
 
     k = len(lines)
+    a, b = _weights(classes, k)
     eligible = [ci for ci, ok in enumerate(split_ok) if ok]
     best: tuple[int, dict[tuple[int, int], int], list[bool]] | None = None
     for mask in range(1 << len(eligible)):
-        split = {eligible[b] for b in range(len(eligible)) if mask >> b & 1}
+        split = {eligible[j] for j in range(len(eligible)) if mask >> j & 1}
         rows: list[tuple[int, int]] = []  # (class, carbons in this row)
         for ci, c in enumerate(classes):
             if ci in split:
@@ -244,13 +258,13 @@ def _solve_lsa(
         overflow: list[tuple[int | None, int]] = []  # (line or None = not seen, cost)
         for r, (ci, carbons) in enumerate(rows):
             for li in range(k):
-                lsa.add_arc_with_cost(r, li, round(_SCALE * (q[ci][li] * carbons - w.carbon_missing)))
+                lsa.add_arc_with_cost(r, li, round(a * q[ci][li] * carbons - b * w.carbon_missing))
             li_best = min(range(k), key=lambda li: (q[ci][li], li))
-            over = round(_SCALE * (q[ci][li_best] * carbons + w.carbon_overlap))
+            over = round(a * q[ci][li_best] * carbons + b * w.carbon_overlap)
             if ci in split:
                 overflow.append((li_best, over))
             else:
-                gone = round(_SCALE * w.carbon_missing * carbons)
+                gone = round(b * w.carbon_missing * carbons)
                 overflow.append((li_best, over) if over <= gone else (None, gone))
             lsa.add_arc_with_cost(r, k + r, overflow[-1][1])
         for d in range(k):
@@ -259,7 +273,7 @@ def _solve_lsa(
                 lsa.add_arc_with_cost(n_r + d, k + r, 0)
         if lsa.solve() != lsa.OPTIMAL:  # pragma: no cover - a perfect matching always exists
             raise RuntimeError("13C assignment found no solution")
-        cost = lsa.optimal_cost() + round(_SCALE * w.carbon_split) * len(split)
+        cost = lsa.optimal_cost() + round(b * w.carbon_split) * len(split)
         if best is not None and cost >= best[0]:
             continue
         on: dict[tuple[int, int], int] = {}
@@ -284,69 +298,82 @@ def _solve_cpsat(
     split_ok: list[bool],
     stated: bool,
 ) -> tuple[dict[tuple[int, int], int], list[bool]]:
-    """The full model (with stated counts) in CP-SAT."""
+    """The full model (with stated counts) in CP-SAT.
+
+    A class is never put on a line whose shift cost alone exceeds what
+    leaving the class unseen could add (its own penalty, the line left
+    empty, the count off by its carbons): such a pair is in no optimum, so
+    the variable is not made.
+    """
     from ortools.sat.python import cp_model
 
     k = len(lines)
+    a, b = _weights(classes, k)
     m = cp_model.CpModel()
     terms = []
-    x: dict[tuple[int, int], cp_model.IntVar] = {}  # class c (or part of it) on line l
-    n: dict[tuple[int, int], cp_model.IntVar | int] = {}  # carbons of c on line l (expression)
+    x: dict[tuple[int, int], Any] = {}  # class c (or part of it) on line l
+    n: dict[tuple[int, int], Any] = {}  # carbons of c on line l (expression)
     miss = []
-    splits: dict[int, cp_model.IntVar] = {}
     for ci, c in enumerate(classes):
         size = len(c.atoms)
+        # dropping the class instead: its penalty, the lines it leaves empty, the counts
+        emptied = 2 if split_ok[ci] else 1
+        worst = b * (w.carbon_missing * (size + emptied) + (w.carbon_count * size if stated else 0.0))
+        unit = 1 if split_ok[ci] else size
+        allowed = [li for li in range(k) if a * q[ci][li] * unit <= worst + 1e-9]
         gone = m.new_bool_var(f"miss{ci}")
         miss.append(gone)
-        terms.append(round(_SCALE * w.carbon_missing * size) * gone)
+        terms.append(round(b * w.carbon_missing * size) * gone)
         if split_ok[ci]:
             parts = []
-            for li in range(k):
+            for li in allowed:
                 v = m.new_int_var(0, size, f"n{ci}_{li}")
-                b = m.new_bool_var(f"x{ci}_{li}")
-                m.add(v >= b)
-                m.add(v <= size * b)
-                x[ci, li], n[ci, li] = b, v
-                parts.append(b)
-                terms.append(round(_SCALE * q[ci][li]) * v)
-            m.add(sum(n[ci, li] for li in range(k)) + size * gone == size)
+                xb = m.new_bool_var(f"x{ci}_{li}")
+                m.add(v >= xb)
+                m.add(v <= size * xb)
+                x[ci, li], n[ci, li] = xb, v
+                parts.append(xb)
+                terms.append(round(a * q[ci][li]) * v)
+            m.add(sum(n[ci, li] for li in allowed) + size * gone == size)
             sp = m.new_bool_var(f"split{ci}")
             m.add(sp >= sum(parts) - 1)
-            splits[ci] = sp
-            terms.append(round(_SCALE * w.carbon_split) * sp)
+            terms.append(round(b * w.carbon_split) * sp)
         else:
             row = []
-            for li in range(k):
-                b = m.new_bool_var(f"x{ci}_{li}")
-                x[ci, li] = b
-                n[ci, li] = size * b
-                row.append(b)
-                terms.append(round(_SCALE * q[ci][li] * size) * b)
+            for li in allowed:
+                xb = m.new_bool_var(f"x{ci}_{li}")
+                x[ci, li] = xb
+                n[ci, li] = size * xb
+                row.append(xb)
+                terms.append(round(a * q[ci][li] * size) * xb)
             m.add(sum(row) + gone == 1)
-    covered = []
     for li, line in enumerate(lines):
-        here = [x[ci, li] for ci in range(len(classes))]
+        keys = [(ci, li) for ci in range(len(classes)) if (ci, li) in x]
+        here = [x[key] for key in keys]
         cov = m.new_bool_var(f"cov{li}")
         m.add(cov <= sum(here))
-        covered.append(cov)
-        terms.append(round(_SCALE * w.carbon_missing) * (1 - cov))
-        extra = m.new_int_var(0, len(classes), f"extra{li}")
-        m.add(extra >= sum(here) - 1)
-        terms.append(round(_SCALE * w.carbon_overlap) * extra)
+        terms.append(round(b * w.carbon_missing) * (1 - cov))
+        if len(here) > 1:
+            extra = m.new_int_var(0, len(here), f"extra{li}")
+            m.add(extra >= sum(here) - 1)
+            terms.append(round(b * w.carbon_overlap) * extra)
         if stated:
-            recv = sum(n[ci, li] for ci in range(len(classes)))
+            recv = sum(n[key] for key in keys)
             dev = m.new_int_var(0, sum(len(c.atoms) for c in classes) + line.carbons, f"dev{li}")
             m.add(dev >= recv - line.carbons)
             m.add(dev >= line.carbons - recv - line.carbons * (1 - cov))
-            terms.append(round(_SCALE * w.carbon_count) * dev)
+            terms.append(round(b * w.carbon_count) * dev)
     m.minimize(sum(terms))
     solver = cp_model.CpSolver()
     solver.parameters.num_workers = 1
     solver.parameters.max_time_in_seconds = 2.0
+    # small models: presolve costs more than it saves; the LP relaxation helps
+    solver.parameters.cp_model_presolve = False
+    solver.parameters.linearization_level = 2
     status = solver.solve(m)
     if status not in (cp_model.OPTIMAL, cp_model.FEASIBLE):  # pragma: no cover - the model is always feasible
         raise RuntimeError("13C assignment model found no solution")
-    on = {(ci, li): int(solver.value(n[ci, li])) for ci in range(len(classes)) for li in range(k) if solver.value(x[ci, li])}
+    on = {key: int(solver.value(n[key])) for key, v in x.items() if solver.value(v)}
     return on, [bool(solver.value(v)) for v in miss]
 
 
@@ -362,13 +389,12 @@ def _decode(
     """Records, notes and the exact (unrounded) cost of the chosen assignment."""
     rows: list[C13Assignment] = []
     notes: list[str] = []
-    total = 0.0
+    pen = 0.0  # structural penalties (per line / class / split)
     bad = False
-    shift_total = 0.0
+    shift_total = 0.0  # per-carbon shift (and DEPT) costs
     for (ci, li), carbons in sorted(on.items(), key=lambda kv: (kv[0][1], classes[kv[0][0]].atoms)):
         c, line = classes[ci], lines[li]
         cost = q[ci][li] * carbons
-        total += cost
         shift_total += cost
         rows.append(C13Assignment(
             li, tuple(c.atoms), carbons, c.shift, line.shift, round(c.shift - line.shift, 4),
@@ -383,13 +409,13 @@ def _decode(
     for ci, c in enumerate(classes):
         used = sorted(li for (cj, li) in on if cj == ci)
         if len(used) > 1:
-            total += w.carbon_split
+            pen += w.carbon_split
             notes.append(
                 f"13C: the equivalent carbons predicted at {c.shift:.1f} show as {len(used)} lines ("
                 + ", ".join(f"{lines[li].shift:.1f}" for li in used) + ")"
             )
         if missing[ci]:
-            total += w.carbon_missing * len(c.atoms)
+            pen += w.carbon_missing * len(c.atoms)
             rows.append(C13Assignment(None, tuple(c.atoms), len(c.atoms), c.shift, None, None,
                                       c.attached_h, None, c.uncertainty,
                                       round(w.carbon_missing * len(c.atoms), 4)))
@@ -399,14 +425,14 @@ def _decode(
         here = [ci for (ci, lj) in on if lj == li]
         if not here:
             unexplained.append(li)
-            total += w.carbon_missing
+            pen += w.carbon_missing
             rows.append(C13Assignment(li, (), 0, None, line.shift, None, None, line.attached_h, None,
                                       round(w.carbon_missing, 4)))
         else:
-            total += w.carbon_overlap * (len(here) - 1)
+            pen += w.carbon_overlap * (len(here) - 1)
             if stated:
                 recv = sum(on[ci, li] for ci in here)
-                total += w.carbon_count * abs(recv - line.carbons)
+                pen += w.carbon_count * abs(recv - line.carbons)
     if unexplained:
         bad = True
         if len(lines) > len(classes):
@@ -419,5 +445,6 @@ def _decode(
     if mean > 3.0:
         bad = True
         notes.append(f"13C shifts fit poorly (mean cost {mean:.1f} typical errors per carbon)")
-    return C13Fit(round(_scale(total, n_c, w), 4), round(total, 4), tuple(rows), tuple(notes), bad)
+    total = _term(shift_total, pen, n_c, len(lines))
+    return C13Fit(round(3.0 * w.carbon_shift * total, 4), round(total, 4), tuple(rows), tuple(notes), bad)
 

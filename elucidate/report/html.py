@@ -386,6 +386,8 @@ def _c13_panel(problem: Problem, cand: Candidate) -> str:
     colours = {atom: c13_colour(ls[0]) for atom, ls in atom_lines.items()}
     notes = {atom: ",".join(c13_label(x) for x in sorted(ls)) for atom, ls in atom_lines.items()}
     drawing = draw_molecule(smiles, colours, notes, size=(340, 260), label=f"candidate {cand.rank}, carbons by 13C line")
+    # its own class: "svg.mol" is the candidate's structure drawing (one per card)
+    drawing = drawing.replace('<svg class="mol"', '<svg class="c13-mol"', 1)
     return (
         '<h4 class="c13">13C: observed lines and predicted carbons</h4>'
         '<div class="row">'
@@ -465,7 +467,7 @@ def c13_spectrum_svg(problem: Problem, cand: Candidate | None = None, *, width: 
     height = axis_y + 34
     max_c = max([c.carbons for c in problem.c13] + [r.carbons for r in preds] + [1])
     out = [
-        f'<svg class="spectrum c13" role="img" aria-label="observed and predicted 13C stick spectrum" '
+        f'<svg class="c13-lines" role="img" aria-label="observed and predicted 13C stick spectrum" '
         f'width="{width}" height="{height}" viewBox="0 0 {width} {height}">',
         f'<rect x="0" y="0" width="{width}" height="{height}" fill="#fff"/>',
         f'<text x="6" y="{_f(base - stick_up / 2)}" font-size="11" fill="#5d6b73">observed</text>',

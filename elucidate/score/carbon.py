@@ -58,8 +58,8 @@ class C13Fit:
     ``cost`` is the term added to the fit (scaled as the module says);
     ``total`` the model's objective (mean shift cost per carbon + penalties
     per line, in typical errors); ``clearly_wrong`` is set
-    when a line is left unexplained, a DEPT label is contradicted or the
-    mean cost per carbon is above 3.
+    when a line is left unexplained, a carbon has no line, a DEPT label is
+    contradicted or the mean cost per carbon is above 3.
     """
 
     cost: float
@@ -415,6 +415,7 @@ def _decode(
                 + ", ".join(f"{lines[li].shift:.1f}" for li in used) + ")"
             )
         if missing[ci]:
+            bad = True  # ranked by its cost, but not "consistent"
             pen += w.carbon_missing * len(c.atoms)
             rows.append(C13Assignment(None, tuple(c.atoms), len(c.atoms), c.shift, None, None,
                                       c.attached_h, None, c.uncertainty,

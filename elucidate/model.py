@@ -29,6 +29,7 @@ __all__ = [
     "CarbonShift",
     "Prediction",
     "Assignment",
+    "C13Assignment",
     "Candidate",
     "Rejection",
     "SolveResult",
@@ -325,6 +326,33 @@ class Assignment(_JsonMixin):
 
 
 @dataclass(frozen=True)
+class C13Assignment(_JsonMixin):
+    """One predicted carbon class matched to one observed 13C line.
+
+    ``line`` is the index into ``Problem.c13`` (``None``: the class has no
+    line, e.g. a weak quaternary carbon not seen); ``atoms`` are the
+    equivalent carbons of the class (``()``: an observed line that no class
+    explains).  ``carbons`` is how many of the class's carbons sit on this
+    line (one of a pair that shows as two lines, e.g. the diastereotopic
+    methyls of an isopropyl group next to a stereocentre).  ``h_observed``
+    comes from the DEPT label of the line, if given.  ``deviation`` is
+    δ predicted − δ observed; ``cost`` is this row's share of the 13C cost in
+    typical errors (per carbon, summed over its carbons).
+    """
+
+    line: int | None
+    atoms: tuple[int, ...]
+    carbons: int
+    predicted: float | None
+    observed: float | None
+    deviation: float | None
+    h_predicted: int | None
+    h_observed: int | None
+    uncertainty: float | None = None
+    cost: float = 0.0
+
+
+@dataclass(frozen=True)
 class Candidate(_JsonMixin):
     """A structure consistent with the hard constraints, with its evidence."""
 
@@ -335,6 +363,7 @@ class Candidate(_JsonMixin):
     assignments: tuple[Assignment, ...]
     notes: tuple[str, ...] = ()
     prediction: Prediction | None = None
+    c13_assignments: tuple[C13Assignment, ...] = ()
 
     def to_json(self) -> dict[str, Any]:
         return {
@@ -343,6 +372,7 @@ class Candidate(_JsonMixin):
             "score": round(self.score, 4),
             "verdict": self.verdict,
             "assignments": [a.to_json() for a in self.assignments],
+            "c13_assignments": [a.to_json() for a in self.c13_assignments],
             "notes": list(self.notes),
             "prediction": self.prediction.to_json() if self.prediction else None,
         }

@@ -622,6 +622,7 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
         assignments=entry.fit.assignments if entry.fit else (),
         notes=tuple(notes),
         prediction=entry.prediction,
+        c13_assignments=entry.fit.c13_assignments if entry.fit else (),
     )
 
 

@@ -14,6 +14,7 @@ from pathlib import Path
 
 from elucidate.model import (
     Assignment,
+    C13Assignment,
     Candidate,
     Environment,
     H1Signal,
@@ -37,6 +38,12 @@ __all__ = [
     "largest_deviation",
     "table_rows",
     "environment_by_index",
+    "dept_name",
+    "c13_label",
+    "c13_colour",
+    "fmt_c13",
+    "c13_rows",
+    "C13_HEAD",
     "multiplet_lines",
     "observed_lines",
     "predicted_lines",
@@ -261,3 +268,86 @@ def write_text(target: Path, text: str, option: str) -> Path:
     except OSError as err:
         raise InputError(f"{option} {target}: cannot write the file ({err.strerror})") from err
     return target
+
+
+# ---------------------------------------------------------------------- 13C
+
+
+def dept_name(attached_h: int | None) -> str:
+    """``C``, ``CH``, ``CH2``, ``CH3`` for 0–3 attached H; ``–`` if unknown.
+
+    Examples
+    --------
+    >>> dept_name(2), dept_name(None)
+    ('CH2', '–')
+    """
+    if attached_h is None:
+        return "–"
+    return ("C", "CH", "CH2", "CH3")[attached_h] if 0 <= attached_h <= 3 else f"CH{attached_h}"
+
+
+def c13_label(index: int) -> str:
+    """Name of observed 13C line ``index`` in tables and spectra: its number
+    in the list (high ppm first), so it cannot be mistaken for a 1H letter.
+
+    Examples
+    --------
+    >>> c13_label(0), c13_label(11)
+    ('1', '12')
+    """
+    if index < 0:
+        raise ValueError(f"13C line index must be >= 0, got {index}")
+    return str(index + 1)
+
+
+def c13_colour(index: int | None) -> str:
+    """Colour of observed 13C line ``index`` (the same palette; ``None``: grey)."""
+    return signal_colour(index)
+
+
+def fmt_c13(value: float | None) -> str:
+    """A 13C shift to one decimal (as 13C shifts are quoted), ``–`` if absent."""
+    return "–" if value is None else f"{value:.1f}"
+
+
+#: Column heads of the 13C assignment table (terminal and HTML).
+C13_HEAD: tuple[str, ...] = ("line", "δ obs", "δ pred", "Δ", "H obs/pred", "carbons")
+
+
+def _atoms_text(atoms: tuple[int, ...]) -> str:
+    return ", ".join(f"C{i}" for i in atoms) if atoms else "–"
+
+
+def c13_rows(problem: Problem, candidate: Candidate) -> list[tuple[C13Assignment, tuple[str, ...]]]:
+    """The candidate's 13C assignment as table rows, observed lines in order
+    (high ppm first), then the carbons no line was given to.
+
+    Each row is (record, cells) with the cells of :data:`C13_HEAD`: line
+    number, δ observed, δ predicted, Δ = pred − obs, attached H observed
+    (DEPT) / predicted, and the carbon atoms (``C<index>``, indices in the
+    SMILES order, from 0).
+    """
+    out = []
+    recs = sorted(
+        candidate.c13_assignments,
+        key=lambda r: (r.line is None, r.line if r.line is not None else 0, -(r.predicted or 0.0), r.atoms),
+    )
+    for r in recs:
+        delta = None if r.deviation is None else f"{r.deviation:+.1f}".replace("+0.0", "±0.0").replace("-0.0", "±0.0")
+        h_obs = dept_name(r.h_observed) if r.line is not None and r.line < len(problem.c13) else "–"
+        h_pred = dept_name(r.h_predicted) if r.atoms else "–"
+        atoms = _atoms_text(r.atoms)
+        if r.atoms and r.carbons < len(r.atoms):
+            atoms += f" ({r.carbons} of {len(r.atoms)})"
+        out.append((
+            r,
+            (
+                c13_label(r.line) if r.line is not None else "–",
+                fmt_c13(r.observed),
+                fmt_c13(r.predicted),
+                delta or "–",
+                f"{h_obs}/{h_pred}",
+                atoms,
+            ),
+        ))
+    return out

@@ -12,7 +12,10 @@ labelled with that signal's letter; observed vs predicted stick spectra on a
 ppm axis that decreases to the right; each signal's first-order multiplet
 (n+1 rule from the J values, observed above, predicted below, in Hz); and the
 assignment table, with the derivation of every predicted shift in a
-``<details>`` element.
+``<details>`` element.  When 13C lines were given, a 13C panel follows:
+the carbons tinted and numbered by the observed line they are assigned to,
+observed lines up and predicted carbon classes down on a 0–220 ppm axis
+(DEPT labels where given), and the 13C assignment table.
 """
 
 from __future__ import annotations
@@ -27,6 +30,12 @@ from elucidate import CAUTION, __version__
 from elucidate.errors import InputError
 from elucidate.model import Assignment, Candidate, Environment, H1Signal, Problem, Rejection, SolveResult
 from elucidate.report.common import (
+    C13_HEAD,
+    c13_colour,
+    c13_label,
+    c13_rows,
+    dept_name,
+    fmt_c13,
     write_text,
     UNASSIGNED_COLOUR,
     environment_by_index,
@@ -51,6 +60,7 @@ __all__ = [
     "render_explain_html",
     "draw_molecule",
     "spectrum_svg",
+    "c13_spectrum_svg",
     "multiplet_svg",
 ]
 
@@ -196,6 +206,7 @@ details ul{margin:4px 0 2px 16px;padding:0}
 .example svg{display:block;margin:0 auto}
 .example ul{margin:4px 0 0 14px;padding:0}
 .input td{font-size:14px}
+h4.c13{margin:14px 0 4px;font-size:15px;color:var(--accent)}
 footer{color:var(--muted);font-size:12px;border-top:1px solid var(--line);padding-top:8px;margin-top:30px}
 @media print{header{background:#fff;color:var(--ink);border-bottom:3px solid var(--accent)}
 .card{break-inside:avoid}details{display:block}}
@@ -344,8 +355,189 @@ def _candidate_card(problem: Problem, cand: Candidate, shown_notes: Sequence[str
         f'<div class="multiplets">{_multiplet_panels(problem, cand, envs)}</div></div>'
         "</div>"
         f"{_assignment_table(problem, cand, envs)}"
+        f"{_c13_panel(problem, cand)}"
         "</section>"
     )
+
+
+# ------------------------------------------------------------------- 13C
+
+
+def _c13_chip(line: int | None) -> str:
+    text = c13_label(line) if line is not None else "–"
+    return f'<span class="chip" style="background:{c13_colour(line)}">{text}</span>'
+
+
+def _c13_panel(problem: Problem, cand: Candidate) -> str:
+    """The 13C part of a candidate card ('' when no 13C lines were given)."""
+    if not problem.c13:
+        return ""
+    if not cand.c13_assignments:
+        return '<h4 class="c13">13C</h4><p class="notes">No 13C assignment for this candidate.</p>'
+    atom_lines: dict[int, list[int]] = {}
+    for r in cand.c13_assignments:
+        if r.line is None:
+            continue
+        for atom in r.atoms:
+            atom_lines.setdefault(atom, [])
+            if r.line not in atom_lines[atom]:
+                atom_lines[atom].append(r.line)
+    smiles = cand.prediction.smiles if cand.prediction is not None else cand.smiles
+    colours = {atom: c13_colour(ls[0]) for atom, ls in atom_lines.items()}
+    notes = {atom: ",".join(c13_label(x) for x in sorted(ls)) for atom, ls in atom_lines.items()}
+    drawing = draw_molecule(smiles, colours, notes, size=(340, 260), label=f"candidate {cand.rank}, carbons by 13C line")
+    # its own class: "svg.mol" is the candidate's structure drawing (one per card)
+    drawing = drawing.replace('<svg class="mol"', '<svg class="c13-mol"', 1)
+    return (
+        '<h4 class="c13">13C: observed lines and predicted carbons</h4>'
+        '<div class="row">'
+        f'<div class="drawing">{drawing}</div>'
+        f'<div class="spectra">{c13_spectrum_svg(problem, cand)}</div>'
+        "</div>"
+        f"{_c13_table(problem, cand)}"
+    )
+
+
+def _c13_table(problem: Problem, cand: Candidate) -> str:
+    rows = []
+    for r, cells in c13_rows(problem, cand):
+        off = r.deviation is not None and r.uncertainty is not None and abs(r.deviation) > r.uncertainty + 1e-9
+        h_off = r.h_observed is not None and r.atoms and r.h_predicted != r.h_observed
+        h_cls = ' class="off"' if h_off else ""
+        pred = cells[2] + (f" ± {r.uncertainty:.1f}" if r.uncertainty is not None and r.predicted is not None else "")
+        rows.append(
+            "<tr>"
+            f"<td>{_c13_chip(r.line)}</td>"
+            f'<td class="num">{escape(cells[1])}</td>'
+            f'<td class="num">{escape(pred)}</td>'
+            f'<td class="num{" off" if off else ""}">{escape(cells[3])}</td>'
+            f"<td{h_cls}>{escape(cells[4])}</td>"
+            f"<td>{escape(cells[5])}</td>"
+            f'<td class="num">{r.cost:.2f}</td>'
+            "</tr>"
+        )
+    attrs = {1: ' class="num"', 2: ' class="num"', 3: ' class="num" title="δ predicted − δ observed"'}
+    head = "".join(f"<th{attrs.get(i, '')}>{escape(h)}</th>" for i, h in enumerate(C13_HEAD))
+    return (
+        f'<table class="assign c13"><thead><tr>{head}'
+        '<th class="num" title="typical errors, summed over the carbons">cost</th></tr></thead>'
+        "<tbody>" + "".join(rows) + "</tbody></table>"
+        '<p class="notes">carbons: atom indices in the SMILES order, from 0; '
+        "H obs from the DEPT label of the line (– if not given).</p>"
+    )
+
+
+def c13_spectrum_svg(problem: Problem, cand: Candidate | None = None, *, width: int = 720) -> str:
+    """Observed (up) vs predicted (down) 13C stick spectrum as an inline ``<svg>``.
+
+    The axis runs from 220 to 0 ppm (wider if a shift lies outside), left to
+    right.  Stick heights follow the number of carbons (a line's ``(2C)``
+    count; a class's carbons on that line).  Each predicted stick takes the
+    colour of the line it is assigned to and a dotted line joins the two;
+    carbons without a line and lines without a carbon are grey.  Observed
+    lines are labelled with their number and DEPT label where given.
+    """
+    recs = list(cand.c13_assignments) if cand is not None else []
+    preds = [r for r in recs if r.atoms and r.predicted is not None]
+    shifts = [c.shift for c in problem.c13] + [r.predicted for r in preds]  # type: ignore[misc]
+    lo = min([0.0] + [v - 5.0 for v in shifts])
+    hi = max([220.0] + [v + 5.0 for v in shifts])
+    lo, hi = float(int(lo // 10 * 10)), float(-int(-hi // 10) * 10)
+    left, right = 78, 16
+    plot_w = width - left - right
+
+    def x(ppm: float) -> float:
+        return left + (hi - ppm) / (hi - lo) * plot_w
+
+    explained = {r.line for r in recs if r.atoms and r.line is not None}
+    obs_labels = []
+    for i, c in enumerate(problem.c13):
+        col = c13_colour(i) if (cand is None or i in explained) else c13_colour(None)
+        text = c13_label(i) + ("" if c.attached_h is None else " " + dept_name(c.attached_h))
+        obs_labels.append((x(c.shift), text, col))
+    pred_labels = [(x(r.predicted), fmt_c13(r.predicted), c13_colour(r.line)) for r in preds]  # type: ignore[arg-type]
+    obs_rows = _stack(obs_labels)
+    pred_rows = _stack(pred_labels)
+    n_obs = max([row for *_, row in obs_rows] + [-1]) + 1
+    n_pred = max([row for *_, row in pred_rows] + [-1]) + 1
+    top = 14 + 12 * n_obs
+    stick_up, stick_down = 60, 44
+    base = top + stick_up + 4
+    axis_y = base + stick_down + 8 + 12 * n_pred
+    height = axis_y + 34
+    max_c = max([c.carbons for c in problem.c13] + [r.carbons for r in preds] + [1])
+    out = [
+        f'<svg class="c13-lines" role="img" aria-label="observed and predicted 13C stick spectrum" '
+        f'width="{width}" height="{height}" viewBox="0 0 {width} {height}">',
+        f'<rect x="0" y="0" width="{width}" height="{height}" fill="#fff"/>',
+        f'<text x="6" y="{_f(base - stick_up / 2)}" font-size="11" fill="#5d6b73">observed</text>',
+        f'<text x="6" y="{_f(base + stick_down / 2 + 8)}" font-size="11" fill="#5d6b73">predicted</text>',
+        f'<line x1="{left}" y1="{_f(base)}" x2="{width - right}" y2="{_f(base)}" stroke="#b9b3a5" stroke-width="1"/>',
+        f'<line x1="{left}" y1="{_f(axis_y)}" x2="{width - right}" y2="{_f(axis_y)}" stroke="#1e2b33" stroke-width="1"/>',
+    ]
+    v = lo
+    while v <= hi + 1e-9:
+        if int(round(v)) % 20 == 0:
+            xv = x(v)
+            out.append(f'<line x1="{_f(xv)}" y1="{_f(axis_y)}" x2="{_f(xv)}" y2="{_f(axis_y + 5)}" stroke="#1e2b33"/>')
+            out.append(
+                f'<text x="{_f(xv)}" y="{_f(axis_y + 17)}" font-size="11" text-anchor="middle" fill="#1e2b33">{v:g}</text>'
+            )
+        v += 10.0
+    out.append(
+        f'<text x="{width - right}" y="{_f(height - 4)}" font-size="11" text-anchor="end" fill="#5d6b73">δ(13C) / ppm</text>'
+    )
+    for r in preds:
+        if r.line is None or r.observed is None:
+            continue
+        out.append(
+            f'<line x1="{_f(x(r.predicted))}" y1="{_f(base + 3)}" x2="{_f(x(r.observed))}" y2="{_f(base - 3)}" '  # type: ignore[arg-type]
+            f'stroke="{c13_colour(r.line)}" stroke-width="1" stroke-dasharray="2 2"/>'
+        )
+    for i, c in enumerate(problem.c13):
+        col = c13_colour(i) if (cand is None or i in explained) else c13_colour(None)
+        h = stick_up * c.carbons / max_c
+        out.append(
+            f'<line x1="{_f(x(c.shift))}" y1="{_f(base)}" x2="{_f(x(c.shift))}" y2="{_f(base - h)}" '
+            f'stroke="{col}" stroke-width="2.2"><title>{escape(f"line {c13_label(i)}: {fmt_c13(c.shift)} ppm")}</title></line>'
+        )
+    for r in preds:
+        col = c13_colour(r.line)
+        h = stick_down * r.carbons / max_c
+        xp = x(r.predicted)  # type: ignore[arg-type]
+        out.append(
+            f'<line x1="{_f(xp)}" y1="{_f(base)}" x2="{_f(xp)}" y2="{_f(base + h)}" '
+            f'stroke="{col}" stroke-width="2.2" stroke-opacity="0.75"/>'
+        )
+    for xpos, text, col, row in obs_rows:
+        out.append(
+            f'<text x="{_f(xpos)}" y="{_f(top - 4 - 12 * (n_obs - 1 - row))}" font-size="10.5" text-anchor="middle" '
+            f'fill="{col}">{escape(text)}</text>'
+        )
+    for xpos, text, col, row in pred_rows:
+        out.append(
+            f'<text x="{_f(xpos)}" y="{_f(base + stick_down + 14 + 12 * row)}" font-size="10.5" text-anchor="middle" '
+            f'fill="{col}">{escape(text)}</text>'
+        )
+    out.append("</svg>")
+    return "".join(out)
+
+
+def _stack(labels: Sequence[tuple[float, str, str]]) -> list[tuple[float, str, str, int]]:
+    """Labels at x positions with the row each goes to so none collide."""
+    rows_end: list[float] = []
+    out = []
+    for xpos, text, col in sorted(labels, key=lambda t: (t[0], t[1])):
+        half = 3.3 * len(text)
+        row = 0
+        while row < len(rows_end) and rows_end[row] > xpos - half:
+            row += 1
+        if row == len(rows_end):
+            rows_end.append(xpos + half + 3)
+        else:
+            rows_end[row] = xpos + half + 3
+        out.append((xpos, text, col, row))
+    return out
 
 
 def _chip(signal: int | None) -> str:

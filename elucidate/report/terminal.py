@@ -16,6 +16,8 @@ from typing import Any, TextIO
 from elucidate import CAUTION
 from elucidate.model import Candidate, Problem, Rejection, SolveResult
 from elucidate.report.common import (
+    C13_HEAD,
+    c13_rows,
     fmt_delta,
     fmt_ppm,
     largest_deviation,
@@ -105,6 +107,10 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
         if best.assignments:
             lines += ["", f"Best candidate, signal by signal: {best.smiles}"]
             lines += _align(_assignment_rows(best), _ASSIGN_RIGHT)
+            c13 = _c13_table_rows(result.problem, best)
+            if c13:
+                lines += ["", "13C, line by line (H: DEPT obs/pred)"]
+                lines += _align(c13, _C13_RIGHT)
             lines += [f"note: {n}" for n in best.notes]
     else:
         lines.append("No candidate is consistent with the data.")
@@ -137,6 +143,15 @@ def _assignment_rows(cand: Candidate) -> list[tuple[str, ...]]:
 
 
 _ASSIGN_RIGHT = (False, True, True, True, False, True)
+_C13_RIGHT = (True, True, True, True, False, False)
+
+
+def _c13_table_rows(problem: Problem, cand: Candidate) -> list[tuple[str, ...]]:
+    """The compact 13C table of a candidate (header first); empty when no
+    13C lines were given or the candidate has no 13C assignment."""
+    if not problem.c13 or not cand.c13_assignments:
+        return []
+    return [C13_HEAD, *(cells for _, cells in c13_rows(problem, cand))]
 
 
 def explain_lines(explanation: Any, problem: Problem | None = None) -> list[str]:
@@ -263,6 +278,14 @@ def _rich_solve(result: SolveResult, stream: TextIO, top: int | None) -> None:
                 style = signal_colour(ord(letter[0]) - ord("a")) if len(letter) == 1 and letter.isalpha() else ""
                 table.add_row(Text(letter, style=f"bold {style}"), *row[1:])
             console.print(table)
+            c13 = _c13_table_rows(result.problem, best)
+            if c13:
+                table = Table(title="13C, line by line (H: DEPT obs/pred)", box=box.SIMPLE_HEAD, title_justify="left")
+                for name, right in zip(c13[0], _C13_RIGHT):
+                    table.add_column(name, justify="right" if right else "left")
+                for row in c13[1:]:
+                    table.add_row(*row)
+                console.print(table)
             for note in best.notes:
                 console.print(Text(f"note: {note}", style="dim"))
     else:

@@ -29,7 +29,7 @@ from dataclasses import dataclass, field
 from typing import Any
 
 from elucidate.errors import InputError
-from elucidate.model import Assignment, Environment, H1Signal, Prediction, Problem, multiplicity_pattern
+from elucidate.model import Assignment, C13Assignment, Environment, H1Signal, Prediction, Problem, multiplicity_pattern
 from elucidate.score import reasons as rs
 
 __all__ = ["Weights", "Fit", "quick_bound", "assign", "carbon_cost", "signal_tolerance", "unusual_groups"]
@@ -59,9 +59,14 @@ class Weights:
     consistent_z: float = 3.0  # every shift within this many typical errors
     consistent_max_ppm: float = 3.0  # ... and within this many ppm, however vague the prediction
     consistent_mult_steps: int = 1
-    carbon_missing: float = 2.0
-    carbon_shift: float = 1.0  # weight of the mean 13C z-score
-    carbon_count: float = 1.0
+    # 13C (elucidate.score.carbon): per carbon, in typical errors
+    carbon_missing: float = 2.0  # a line without a carbon, or a carbon without a line
+    carbon_shift: float = 1.0  # weight of the 13C term (3 x mean cost per carbon)
+    carbon_count: float = 1.0  # per carbon a stated (2C) count is off
+    carbon_overlap: float = 0.5  # per extra class on one line (accidental overlap)
+    carbon_split: float = 0.5  # an equivalent pair seen as two lines (diastereotopic, rotamers)
+    carbon_dept: float = 4.0  # per carbon whose H count contradicts the line's DEPT label
+    carbon_min_uncertainty: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -76,6 +81,7 @@ class Fit:
     reasons: tuple[str, ...] = ()
     carbon: float = 0.0
     details: dict = field(default_factory=dict, compare=False)
+    c13_assignments: tuple[C13Assignment, ...] = ()
 
 
 def signal_tolerance(h_count: float) -> tuple[int, int]:
@@ -230,7 +236,9 @@ def quick_bound(problem: Problem, prediction: Prediction, weights: Weights = Wei
         if e.exchangeable:
             best = min(best, weights.not_observed)
         bound += best
-    return bound + _vagueness(envs, weights) + carbon_cost(problem, prediction, weights)[0], None
+    from elucidate.score.carbon import c13_bound
+
+    return bound + _vagueness(envs, weights) + c13_bound(problem, prediction, weights), None
 
 
 # ----------------------------------------------------------- full model
@@ -415,8 +423,11 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
         got = sum(a.h_count for a in assignments if a.signal == i)
         if got != round(s.h_count):
             notes.append(f"{rs.describe_signal(s)} receives {got}H")
-    carbon, carbon_notes, carbon_bad = carbon_cost(problem, prediction, w)
-    notes += carbon_notes
+    from elucidate.score.carbon import assign_c13
+
+    c13 = assign_c13(problem, prediction, w)
+    carbon, carbon_bad = c13.cost, c13.clearly_wrong
+    notes += c13.notes
     vague = _vagueness(envs, w)
     if vague > 0.5:
         notes.append(f"coarse prediction for some H (vagueness cost {vague:.2f})")
@@ -431,6 +442,7 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
         tuple(notes),
         carbon=round(carbon, 4),
         details={"worst_z": worst_z, "worst_steps": worst_steps},
+        c13_assignments=c13.assignments,
     )
 
 
@@ -438,55 +450,17 @@ def _assign(problem: Problem, prediction: Prediction, w: Weights, time_limit_s: 
 
 
 def carbon_cost(problem: Problem, prediction: Prediction, w: Weights = Weights()) -> tuple[float, list[str], bool]:
-    """13C term: distinct-carbon count and shifts.
-
-    Predicted carbon classes and observed lines are matched in shift order
-    (monotone matching is optimal for a cost that grows with the shift
-    difference); a line may take several classes (overlap, small cost), a
-    line left without a class costs ``carbon_missing``.
+    """13C term: the optimal assignment of observed lines to predicted carbon
+    classes (:func:`elucidate.score.carbon.assign_c13`).
 
     Returns
     -------
     (cost, notes, clearly_wrong)
     """
-    obs = sorted((c.shift for c in problem.c13), reverse=True)
-    pred = sorted(prediction.carbons, key=lambda c: (-c.shift, c.atoms))
-    if not obs or not pred:
-        return 0.0, [], False
-    if len(pred) < len(obs):
-        # equivalent carbons that may show apart (amide N-CH3, E/Z CH3) count twice
-        pred = sorted(
-            [c for c in pred for _ in range(2 if len(c.atoms) == 2 and _apart(prediction.smiles, c.atoms) else 1)],
-            key=lambda c: (-c.shift, c.atoms),
-        )
-    notes: list[str] = []
-    bad = False
-    n, k = len(pred), len(obs)
-    if n < k:
-        bad = True
-        notes.append(f"13C: {k} lines observed but this structure has only {n} distinct carbons")
-    z = [[abs(p.shift - o) / max(p.uncertainty, 1.0) for o in obs] for p in pred]
-    share = w.carbon_count * 0.5
-    miss = w.carbon_missing
-    dp = [[math.inf] * k for _ in range(n)]
-    for b in range(k):
-        dp[0][b] = z[0][b] + miss * b
-    for a in range(1, n):
-        for b in range(k):
-            best = math.inf
-            for b0 in range(b + 1):
-                prev = dp[a - 1][b0]
-                if prev == math.inf:
-                    continue
-                extra = share if b0 == b else miss * (b - b0 - 1)
-                best = min(best, prev + extra)
-            dp[a][b] = best + z[a][b]
-    total = min(dp[n - 1][b] + miss * (k - 1 - b) for b in range(k))
-    mean = total / max(n, k)
-    if mean > 3.0:
-        bad = True
-        notes.append(f"13C shifts fit poorly (mean cost {mean:.1f} typical errors per carbon)")
-    return w.carbon_shift * total / max(n, k) * 3.0, notes, bad
+    from elucidate.score.carbon import assign_c13
+
+    fit = assign_c13(problem, prediction, w)
+    return fit.cost, list(fit.notes), fit.clearly_wrong
 
 
 # --------------------------------------------------------- plausibility

@@ -41,6 +41,8 @@ def lines(text: str) -> tuple[tuple[float, int, int], ...]:
         ("C1=CC=CCC=C1", 5, False, False),  # cycloheptatriene has only 4 classes
         ("CC(O)C(C)C", 5, False, True),  # 3-methylbutan-2-ol: diastereotopic methyls show apart (common practice)
         ("CC(=O)C=C(C)C", 6, False, True),  # mesityl oxide: 6 lines, the =C(CH3)2 methyls differ (from memory)
+        ("CCN(CC)C(=O)c1cccc(C)c1", 12, False, True),  # DEET: amide rotamers double the N-ethyl lines (from memory)
+        ("O=C(C=CC=Cc1ccc2OCOc2c1)N1CCCCC1", 17, False, True),  # piperine: piperidide C2/C6, C3/C5 apart (from memory)
         ("CCOCC", 2, True, True),  # diethyl ether 65.9, 15.2 (Gottlieb 1997, from memory)
         ("CCCOC", 2, True, False),  # methyl propyl ether: 4 distinct carbons, complete list of 2
     ],

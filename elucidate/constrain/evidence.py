@@ -340,9 +340,10 @@ def _carbon_classes(mol: Any) -> tuple[int, int]:
     """(symmetry classes of carbon, classes real spectra may show as two lines).
 
     Two equivalent methyls on a common non-aromatic neighbour (those of an
-    isopropyl or gem-dimethyl group near a stereocentre, the N-methyls of an
-    amide, the methyls of a C=C(CH3)2) may give two lines (common practice);
-    so may an acyclic pair bonded to such a pair.
+    isopropyl or gem-dimethyl group near a stereocentre, the methyls of a
+    C=C(CH3)2), two equivalent carbons on one non-aromatic N (amide
+    rotamers: N,N-diethyl, piperidide C2/C6) may give two lines (common
+    practice); so may a pair bonded to such a pair (two steps out).
     """
     from rdkit import Chem
 
@@ -354,19 +355,21 @@ def _carbon_classes(mol: Any) -> tuple[int, int]:
     pairs = [m for m in members.values() if len(m) == 2]
     can_split: set[tuple[int, int]] = set()
     for a, b in pairs:
-        if mol.GetAtomWithIdx(a).GetTotalNumHs() != 3:
-            continue
+        methyls = mol.GetAtomWithIdx(a).GetTotalNumHs() == 3
         na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
         nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
-        if any(not mol.GetAtomWithIdx(x).GetIsAromatic() for x in na & nb):
-            can_split.add((a, b))
-    for a, b in pairs:
-        if (a, b) in can_split or mol.GetAtomWithIdx(a).IsInRing():
-            continue
-        na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
-        nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
-        if any((x, y) in can_split or (y, x) in can_split for x in na for y in nb):
-            can_split.add((a, b))
+        for x in na & nb:
+            centre = mol.GetAtomWithIdx(x)
+            if not centre.GetIsAromatic() and (methyls or centre.GetSymbol() == "N"):
+                can_split.add((a, b))
+    for _ in range(2):
+        for a, b in pairs:
+            if (a, b) in can_split:
+                continue
+            na = {n.GetIdx() for n in mol.GetAtomWithIdx(a).GetNeighbors()}
+            nb = {n.GetIdx() for n in mol.GetAtomWithIdx(b).GetNeighbors()}
+            if any((x, y) in can_split or (y, x) in can_split for x in na for y in nb):
+                can_split.add((a, b))
     return len(members), len(can_split)
 
 

@@ -182,7 +182,7 @@ def decorate(
         ]
         for v in range(n)
     ]
-    nbrs = [[w for w in range(n) if sk.adj[v] >> w & 1] for v in range(n)]
+    nbrs = sk.nbrs
     # vertices whose neighbourhood is fully coloured once vertex t is coloured
     close_at: list[list[int]] = [[] for _ in range(n)]
     for v in range(n):
@@ -558,31 +558,32 @@ def _bipartite(sums: list[int], sets: tuple[frozenset[int] | None, ...]) -> bool
 
 def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> bool:
     """Necessary condition for a Kekulé partner: an alternating cycle of
-    ring double bonds and ring single bonds may exist."""
+    ring double bonds and ring single bonds may exist (peel away atoms that
+    lack a ring double or a ring single bond to a remaining atom)."""
+    edges = sk.edges
+    n = sk.n
+    dmask = [0] * n
+    smask = [0] * n
     nd = 0
     for j in ring_idx:
-        if x[j] == 1:
-            nd += 1
-    if nd < 2:
-        return False
-    edges = sk.edges
-    dmask = [0] * sk.n
-    smask = [0] * sk.n
-    for j in ring_idx:
-        u, v = edges[j]
-        if x[j] == 1:
+        o = x[j]
+        if o == 1:
+            u, v = edges[j]
             dmask[u] |= 1 << v
             dmask[v] |= 1 << u
             nd += 1
-        elif x[j] == 0:
+        elif o == 0:
+            u, v = edges[j]
             smask[u] |= 1 << v
             smask[v] |= 1 << u
+    if nd < 2:
+        return False
     alive = 0
-    for v in range(sk.n):
-        if dmask[v]:
+    for v in range(n):
+        if dmask[v] and smask[v]:
             alive |= 1 << v
     changed = True
-    while changed:
+    while changed and alive:
         changed = False
         a = alive
         while a:

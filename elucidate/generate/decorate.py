@@ -182,7 +182,7 @@ def decorate(
         ]
         for v in range(n)
     ]
-    nbrs = [[w for w in range(n) if sk.adj[v] >> w & 1] for v in range(n)]
+    nbrs = sk.nbrs
     # vertices whose neighbourhood is fully coloured once vertex t is coloured
     close_at: list[list[int]] = [[] for _ in range(n)]
     for v in range(n):
@@ -560,31 +560,32 @@ def _bipartite(sums: list[int], sets: tuple[frozenset[int] | None, ...]) -> bool
 
 def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> bool:
     """Necessary condition for a Kekulé partner: an alternating cycle of
-    ring double bonds and ring single bonds may exist."""
+    ring double bonds and ring single bonds may exist (peel away atoms that
+    lack a ring double or a ring single bond to a remaining atom)."""
+    edges = sk.edges
+    n = sk.n
+    dmask = [0] * n
+    smask = [0] * n
     nd = 0
     for j in ring_idx:
-        if x[j] == 1:
-            nd += 1
-    if nd < 2:
-        return False
-    edges = sk.edges
-    dmask = [0] * sk.n
-    smask = [0] * sk.n
-    for j in ring_idx:
-        u, v = edges[j]
-        if x[j] == 1:
+        o = x[j]
+        if o == 1:
+            u, v = edges[j]
             dmask[u] |= 1 << v
             dmask[v] |= 1 << u
             nd += 1
-        elif x[j] == 0:
+        elif o == 0:
+            u, v = edges[j]
             smask[u] |= 1 << v
             smask[v] |= 1 << u
+    if nd < 2:
+        return False
     alive = 0
-    for v in range(sk.n):
-        if dmask[v]:
+    for v in range(n):
+        if dmask[v] and smask[v]:
             alive |= 1 << v
     changed = True
-    while changed:
+    while changed and alive:
         changed = False
         a = alive
         while a:
@@ -621,8 +622,11 @@ def structure_smiles(st: Structure) -> str:
 
     With a skeleton at hand, a Kekulé SMILES with every atom in brackets is
     written from the skeleton's template and read back by RDKit without the
-    full sanitisation (property cache, ring perception, aromaticity only),
-    which costs about as much as RDKit's own writing step.
+    full sanitisation (property cache, and for a cyclic graph the symmetrised
+    SSSR and aromaticity only), which costs about as much as RDKit's own
+    writing step.  (The SSSR is worth its cost even where nothing can be
+    aromatic: the canonical writer needs ring information of that kind and
+    would find the rings again itself.)
     """
     from rdkit import Chem
 
@@ -635,51 +639,19 @@ def structure_smiles(st: Structure) -> str:
         # structures of one colouring share their labels tuple: hash labels once
         _LAST_LABELS[0] = labels
         _LAST_LABELS[1] = [(_tokens(lab), lab.valence) for lab in labels]
+    orders = st.orders
     bs = [0] * len(labels)
-    for (u, v), o in zip(st.edges, st.orders):
+    for (u, v), o in zip(st.edges, orders):
         bs[u] += o
         bs[v] += o
     combined = [tok[val - s] for (tok, val), s in zip(_LAST_LABELS[1], bs)]
-    combined += [_BOND_SYMBOL[o] for o in st.orders]
-    vals = getter(combined)
-    m = Chem.MolFromSmiles(fmt % vals, sanitize=False)
+    combined += map(_BOND_SYMBOL.__getitem__, orders)
+    m = Chem.MolFromSmiles(fmt % getter(combined), sanitize=False)
     m.UpdatePropertyCache(strict=False)
-    if len(st.orders) >= len(labels):
-        if _may_be_aromatic(st):
-            Chem.GetSymmSSSR(m)
-            Chem.SetAromaticity(m)
-        else:
-            Chem.FastFindRings(m)
+    if len(orders) >= len(labels):
+        Chem.GetSymmSSSR(m)
+        Chem.SetAromaticity(m)
     return Chem.MolToSmiles(m)
-
-
-def _may_be_aromatic(st: Structure) -> bool:
-    """Necessary condition for RDKit to find an aromatic ring: a cycle through
-    atoms that are not saturated carbon/silicon (every atom of an aromatic ring
-    has a double bond or is a heteroatom that can give a lone pair)."""
-    n = len(st.labels)
-    unsat = [False] * n
-    for (u, v), o in zip(st.edges, st.orders):
-        if o > 1:
-            unsat[u] = unsat[v] = True
-    if not any(unsat) and all(lab.symbol in ("C", "Si") for lab in st.labels):
-        return False
-    ok = [unsat[i] or lab.symbol not in ("C", "Si") for i, lab in enumerate(st.labels)]
-    parent = list(range(n))
-
-    def find(a: int) -> int:
-        while parent[a] != a:
-            parent[a] = parent[parent[a]]
-            a = parent[a]
-        return a
-
-    for u, v in st.edges:
-        if ok[u] and ok[v]:
-            ru, rv = find(u), find(v)
-            if ru == rv:
-                return True
-            parent[ru] = rv
-    return False
 
 
 def structure_mol(st: Structure):  # type: ignore[no-untyped-def]

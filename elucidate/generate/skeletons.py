@@ -44,7 +44,8 @@ class Skeleton:
 
     n: int
     adj: tuple[int, ...]
-    _group: list[tuple[int, ...]] | None = field(default=None, repr=False)
+    gens: list[list[int]] | None = field(default=None, repr=False)
+    """Automorphism group generators, when the enumeration already had them."""
 
     @functools.cached_property
     def edges(self) -> tuple[tuple[int, int], ...]:
@@ -58,13 +59,20 @@ class Skeleton:
         return tuple(a.bit_count() for a in self.adj)
 
     @functools.cached_property
+    def nbrs(self) -> list[list[int]]:
+        """Neighbour lists (ascending) per vertex."""
+        return [_bits(a) for a in self.adj]
+
+    @functools.cached_property
     def group(self) -> list[tuple[int, ...]]:
         """All automorphisms as vertex permutations (identity included)."""
         import pynauty
 
         if self.n == 1:
             return [(0,)]
-        gens = _nw().graph_autgrp(_nauty_graph(self.n, self.adj))[0]
+        gens = self.gens
+        if gens is None:
+            gens = _nw().graph_autgrp(_nauty_graph(self.n, self.adj))[0]
         if not gens:
             return [tuple(range(self.n))]
         return _closure(self.n, [tuple(g) for g in gens])
@@ -167,26 +175,34 @@ class Skeleton:
 
 def _nauty_graph(n: int, adj: tuple[int, ...] | list[int]):  # type: ignore[no-untyped-def]
     """A pynauty Graph built without its per-call input checks (our adjacency
-    lists are valid by construction); same attributes as ``pynauty.Graph``."""
+    lists are valid by construction); same attributes as ``pynauty.Graph``.
+    Both directions of each edge are listed (nauty sets the same bits)."""
     import pynauty
 
     g = pynauty.Graph.__new__(pynauty.Graph)
     g.number_of_vertices = n
     g.directed = False
-    ad = {}
-    for v in range(n):
-        m = adj[v] >> (v + 1)
-        w = v + 1
-        lst = []
-        while m:
-            if m & 1:
-                lst.append(w)
-            m >>= 1
-            w += 1
-        ad[v] = lst
-    g._adjacency_dict = ad
+    g._adjacency_dict = {v: _bits(adj[v]) for v in range(n)}
     g._vertex_coloring = []
     return g
+
+
+_BITS: dict[int, list[int]] = {}
+
+
+def _bits(mask: int) -> list[int]:
+    """Positions of the set bits of ``mask``, ascending (cached; do not modify)."""
+    out = _BITS.get(mask)
+    if out is None:
+        out = []
+        m = mask
+        while m:
+            b = m & -m
+            out.append(b.bit_length() - 1)
+            m ^= b
+        if len(_BITS) < 1 << 20:
+            _BITS[mask] = out
+    return out
 
 
 def _nw():  # type: ignore[no-untyped-def]
@@ -374,8 +390,8 @@ def iter_skeletons(
     """
     if n < 1:
         return
-    for adj in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
-        yield Skeleton(n, adj)
+    for adj, gens in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
+        yield Skeleton(n, adj, gens)
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:
@@ -391,21 +407,22 @@ def _skeletons(
     on_visit: Callable[[int], None] | None,
     min_leaves: int = 0,
     tick: Callable[[], None] | None = None,
-) -> Iterator[tuple[int, ...]]:
+) -> Iterator[tuple[tuple[int, ...], list | None]]:  # type: ignore[type-arg]
+    """Graphs with their automorphism generators (None: not computed)."""
     if n == 1:
-        yield (0,)
+        yield (0,), None
         return
 
-    def walk(adj: tuple[int, ...], e: int) -> Iterator[tuple[int, ...]]:
+    def walk(adj: tuple[int, ...], e: int) -> Iterator[tuple[tuple[int, ...], list | None]]:  # type: ignore[type-arg]
         if tick is not None:
             tick()
         kids = _children(adj, e, n, max_edges, caps, min_edges, girth5, on_visit, min_leaves)
         if len(adj) + 1 == n:
-            for new, e2 in kids:
+            for new, e2, gens in kids:
                 if e2 >= min_edges:
-                    yield new
+                    yield new, gens
         else:
-            for new, e2 in kids:
+            for new, e2, _ in kids:
                 yield from walk(new, e2)
 
     yield from walk((0,), 0)
@@ -421,12 +438,12 @@ def _children(
     girth5: bool,
     on_visit: Callable[[int], None] | None,
     min_leaves: int,
-) -> list[tuple[tuple[int, ...], int]]:
+) -> list[tuple[tuple[int, ...], int, list | None]]:  # type: ignore[type-arg]
     """The canonical children of one graph (one new vertex each), in order."""
     nw = _nw()
     dmax = caps[0] if caps else 0
     k = len(adj)
-    nxt: list[tuple[tuple[int, ...], int]] = []
+    nxt: list[tuple[tuple[int, ...], int, list | None]] = []  # type: ignore[type-arg]
     rem_after = n - k - 1
     last = k == n - 1
     deg = [a.bit_count() for a in adj]
@@ -485,18 +502,26 @@ def _children(
             if not ok:
                 continue
             g = _nauty_graph(k + 1, new)
+            gens = None
             if ties:
                 lab = nw.graph_canonlab(g)
-                orbits = nw.graph_autgrp(g)[3]
+                aut = nw.graph_autgrp(g)
+                orbits = aut[3]
                 pos = {v: i for i, v in enumerate(lab)}
                 w = max([*ties, k], key=pos.__getitem__)
                 if orbits[w] != orbits[k]:
                     continue
-            cert = nw.graph_cert(g)
+                gens = aut[0]
+                # the canonical labelling already gives the certificate
+                cert: object = tuple(sorted(1 << pos[v] | 1 << pos[u] for v in range(k + 1) for u in _bits(new[v]) if u > v))
+            else:
+                cert = nw.graph_cert(g)
             if cert in sib:
                 continue
             sib.add(cert)
-            nxt.append((tuple(new), e + s))
+            if last and gens is None:
+                gens = nw.graph_autgrp(g)[0]  # decoration needs the group
+            nxt.append((tuple(new), e + s, gens))
     if on_visit is not None:
         on_visit(tried)
     return nxt

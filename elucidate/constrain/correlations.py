@@ -176,7 +176,7 @@ class Correlations(Evidence):
     >>> from elucidate.parse import load_problem
     >>> p = load_problem(formula="C4H8O2",
     ...     h1="3.67 (s, 3H), 2.32 (q, J = 7.6 Hz, 2H), 1.14 (t, J = 7.6 Hz, 3H)",
-    ...     c13="174.8, 51.5, 27.5, 9.2", hmbc="1.14/174.8")
+    ...     c13="174.8, 51.5, 27.5, 9.2", hsqc="3.67/51.5, 1.14/9.2", hmbc="3.67/174.8, 1.14/174.8")
     >>> strict = correlation_evidence(p)[0]
     >>> strict.reason(Graph.from_smiles("CCC(=O)OC")) is None     # methyl propanoate
     True
@@ -188,6 +188,7 @@ class Correlations(Evidence):
     lines: tuple[_Line, ...] = ()
     peaks: tuple[_Peak, ...] = ()
     long_range: bool = False
+    n_carbons: int = 0  # carbons in the formula (for group_bounds)
 
     @property
     def key(self) -> str:  # type: ignore[override]
@@ -221,6 +222,36 @@ class Correlations(Evidence):
             if mine:
                 parts.append(f"{kind} {', '.join(m.split(' ', 1)[1] for m in mine)}: {words}")
         return "; ".join(parts) or self.title
+
+    def group_bounds(self) -> dict[int, tuple[int, int]] | None:
+        """Carbon counts the HSQC peaks imply.
+
+        Each 13C line with an HSQC peak is a different carbon bearing H, so
+        at most ``C - lines`` carbons carry none.  In the strict reading a
+        line with HSQC peaks to two 1H signals is one CH2 whose two H appear
+        at two shifts, so there are at least that many CH2.
+
+        >>> from elucidate.parse import load_problem
+        >>> p = load_problem(formula="C4H8O2", h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)",
+        ...                  c13="171.1, 60.4, 21.0, 14.2", hsqc="4.12/60.4, 2.05/21.0, 1.26/14.2")
+        >>> correlation_evidence(p)[0].group_bounds()
+        {0: (0, 1)}
+        """
+        by_line: dict[int, set[int]] = {}
+        for p in self.peaks:
+            if p.kind == "HSQC":
+                by_line.setdefault(p.b, set()).add(p.a)
+        if not by_line or self.n_carbons <= 0:
+            return None
+        out = {0: (0, max(0, self.n_carbons - len(by_line)))}
+        if not self.long_range:
+            split = sum(
+                1 for sigs in by_line.values()
+                if len(sigs) >= 2 and all(1 in self.signals[s].totals for s in sigs)
+            )
+            if split:
+                out[2] = (split, self.n_carbons)
+        return out
 
     # ------------------------------------------------------------ checking
 
@@ -562,4 +593,6 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         b = sig(c.signal2) if c.kind == "COSY" else line(c.signal2)  # type: ignore[arg-type]
         out.append(_Peak(c.kind, a, b, c.intensity in _WEAK, c.label))
     common = (tuple(signals), tuple(lines), tuple(out))
-    return (Correlations(*common, long_range=False), Correlations(*common, long_range=True))
+    n_c = problem.formula["C"]
+    return (Correlations(*common, long_range=False, n_carbons=n_c),
+            Correlations(*common, long_range=True, n_carbons=n_c))

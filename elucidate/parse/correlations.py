@@ -380,8 +380,8 @@ def match_correlations(
 
     Examples
     --------
-    >>> from elucidate.parse import parse_h1, parse_c13
-    >>> h1 = parse_h1("4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)")
+    >>> from elucidate.parse import parse_h1
+    >>> h1, _ = parse_h1("4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)")
     >>> peaks, warnings = match_correlations([RawPeak("COSY", 4.12, 1.26)], h1, ())
     >>> (peaks[0].signal1, peaks[0].signal2, warnings)
     (0, 2, [])

@@ -21,7 +21,9 @@ two H appear at two shifts); a 13C line is one symmetry class, and the HSQC
 peaks of one line are one carbon.  Any other signal (``m``, a range, ``br``)
 may be an overlap of several environments: a set of atoms whose H add up to
 the integral.  Different signals sit on different atoms, except the two H of
-one CH2 (or NH2) at two shifts; different lines are different carbons.  A
+one CH2 (or NH2) at two shifts; different lines are different carbons,
+each in the shift region of its line (``data/c13_regions.csv``: a line
+above 166 ppm is a C=O or C=N carbon, ...).  A
 cross peak marked weak (``w``, ``weak``) may be one bond longer (4J).
 
 The first relaxation (``long_range=True``, tier 2) admits 4-bond COSY and
@@ -49,7 +51,7 @@ import functools
 from dataclasses import dataclass
 from typing import Any
 
-from elucidate.constrain.evidence import Evidence, Graph
+from elucidate.constrain.evidence import _NEEDS, Evidence, Graph, carbon_regions
 from elucidate.model import Problem
 
 __all__ = ["MAX_NODES", "Correlations", "correlation_evidence", "signal_totals"]
@@ -93,6 +95,7 @@ class _Line:
     index: int  # into Problem.c13
     shift: float
     h: int  # DEPT attached H, -1 if not given
+    need: str = ""  # what the line's 13C shift region asks of its carbon (constrain/data/c13_regions.csv)
 
 
 @dataclass(frozen=True)
@@ -124,6 +127,7 @@ class _View:
         n = len(graph.symbols)
         self.n = n
         self.hs = graph.hs
+        self.flags = graph.flags()
         self.carbon = [s == "C" for s in graph.symbols]
         adj: list[list[int]] = [[] for _ in range(n)]
         for u, v in graph.edges:
@@ -422,8 +426,10 @@ class _Search:
             if v.carbon and not self.view.carbon[a]:
                 continue
             if v.line >= 0:
-                want = self.ev.lines[v.line].h
-                if want >= 0 and self.view.hs[a] != want:
+                line = self.ev.lines[v.line]
+                if line.h >= 0 and self.view.hs[a] != line.h:
+                    continue
+                if line.need and not self.ev.long_range and not _NEEDS[line.need](self.view.flags[a]):
                     continue
             if v.sigs and not all(self._sig_accepts(s, a) for s in v.sigs):
                 continue
@@ -584,7 +590,9 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         if j not in line_ids:
             c = problem.c13[j]
             line_ids[j] = len(lines)
-            lines.append(_Line(j, c.shift, -1 if c.attached_h is None else c.attached_h))
+            region = next((r for r in carbon_regions() if r.holds(c.shift)), None)
+            lines.append(_Line(j, c.shift, -1 if c.attached_h is None else c.attached_h,
+                               region.needs if region else ""))
         return line_ids[j]
 
     out = []

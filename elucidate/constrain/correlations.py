@@ -327,7 +327,7 @@ class Correlations(Evidence):
         if not sig.single or self.long_range:
             return f"set of atoms holding {_or([str(t) for t in sig.totals])} H"
         words = []
-        for t in sig.totals:
+        for t in sorted(sig.totals, key=lambda t: (abs(t - sig.n), t)):
             for h in (3, 2, 1):
                 if t % h == 0:
                     k = t // h

@@ -107,6 +107,22 @@ C13CompleteOpt = Annotated[
         show_default=False,
     ),
 ]
+HsqcOpt = Annotated[
+    Optional[str],
+    typer.Option("--hsqc", help="HSQC cross peaks dH/dC, e.g. '3.67/51.5, 2.32/27.5', or @FILE (CSV: dH, dC)."),
+]
+CosyOpt = Annotated[
+    Optional[str],
+    typer.Option("--cosy", help="COSY cross peaks dH/dH, e.g. '4.12/1.26', or @FILE (CSV: H1, H2)."),
+]
+HmbcOpt = Annotated[
+    Optional[str],
+    typer.Option("--hmbc", help="HMBC cross peaks dH/dC (2-3 bonds H to C), e.g. '3.67/174.8', or @FILE."),
+]
+NoesyOpt = Annotated[
+    Optional[str],
+    typer.Option("--noesy", help="NOESY cross peaks dH/dH (shown only: through space, not a constraint)."),
+]
 JsonOpt = Annotated[bool, typer.Option("--json", help="Write one JSON document to stdout.")]
 
 
@@ -140,6 +156,10 @@ def read_command(
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
     c13_complete: C13CompleteOpt = None,
+    hsqc: HsqcOpt = None,
+    cosy: CosyOpt = None,
+    hmbc: HmbcOpt = None,
+    noesy: NoesyOpt = None,
     json_out: JsonOpt = False,
 ) -> None:
     """Read an unknown and show what was understood: formula, DoU, the 1H and
@@ -157,6 +177,10 @@ def read_command(
         require=tuple(require or ()),
         forbid=tuple(forbid or ()),
         c13_complete=c13_complete,
+        hsqc=hsqc,
+        cosy=cosy,
+        hmbc=hmbc,
+        noesy=noesy,
     )
     for message in problem.warnings:
         warn(message)
@@ -435,12 +459,15 @@ def _deliver(
 def _load(
     case: Any, formula: Any, h1: Any, c13: Any, solvent: Any, field: Any, require: Any, forbid: Any,
     c13_complete: bool | None = None,
+    two_d: tuple[Any, Any, Any, Any] = (None, None, None, None),
 ) -> Any:
     from elucidate.parse import load_problem
 
+    hsqc, cosy, hmbc, noesy = two_d
     problem = load_problem(
         case, formula=formula, h1=h1, c13=c13, solvent=solvent, field_mhz=field,
         require=tuple(require or ()), forbid=tuple(forbid or ()), c13_complete=c13_complete,
+        hsqc=hsqc, cosy=cosy, hmbc=hmbc, noesy=noesy,
     )
     for message in problem.warnings:
         warn(message)
@@ -459,6 +486,10 @@ def solve_command(
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
     c13_complete: C13CompleteOpt = None,
+    hsqc: HsqcOpt = None,
+    cosy: CosyOpt = None,
+    hmbc: HmbcOpt = None,
+    noesy: NoesyOpt = None,
     top: TopOpt = 10,
     time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
@@ -476,7 +507,8 @@ def solve_command(
 
     _check_output(report, "--report")
     _check_output(sdf, "--sdf")
-    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete,
+                    (hsqc, cosy, hmbc, noesy))
     with stderr_progress() as progress:
         result = solve(
             problem, top=top, time_limit_s=_time_limit(time_limit), max_structures=max_structures,
@@ -507,6 +539,10 @@ def explain_command(
     require: RequireOpt = None,
     forbid: ForbidOpt = None,
     c13_complete: C13CompleteOpt = None,
+    hsqc: HsqcOpt = None,
+    cosy: CosyOpt = None,
+    hmbc: HmbcOpt = None,
+    noesy: NoesyOpt = None,
     time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
     report: ReportOpt = None,
@@ -525,7 +561,8 @@ def explain_command(
         if case is not None:
             raise InputError(f"explain: give the case file once (--case {case} and {first!r})")
         case, smiles = Path(first), second
-    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete)
+    problem = _load(case, formula, h1, c13, solvent, field, require, forbid, c13_complete,
+                    (hsqc, cosy, hmbc, noesy))
     with stderr_progress() as progress:
         explanation = explain(
             problem, smiles, time_limit_s=_time_limit(time_limit), max_structures=max_structures,

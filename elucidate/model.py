@@ -23,6 +23,9 @@ __all__ = [
     "H1Signal",
     "C13Signal",
     "SetAside",
+    "CORRELATION_KINDS",
+    "HETERONUCLEAR",
+    "CrossPeak",
     "Problem",
     "Coupling",
     "Environment",
@@ -199,6 +202,44 @@ class SetAside(_JsonMixin):
     where: str = ""
 
 
+#: 2D experiments a case may carry; the first three are hard constraints.
+CORRELATION_KINDS: tuple[str, ...] = ("HSQC", "COSY", "HMBC", "NOESY")
+#: Heteronuclear experiments (first shift 1H, second 13C); the others are 1H/1H.
+HETERONUCLEAR: frozenset[str] = frozenset({"HSQC", "HMBC"})
+
+
+@dataclass(frozen=True)
+class CrossPeak(_JsonMixin):
+    """One 2D cross peak, matched to the 1D signals.
+
+    ``shift1`` is the 1H shift (the first 1H shift for COSY/NOESY) and
+    ``shift2`` the 13C shift (HSQC/HMBC) or the second 1H shift.
+    ``signal1`` indexes :attr:`Problem.h1`; ``signal2`` indexes
+    :attr:`Problem.c13` (HSQC/HMBC) or :attr:`Problem.h1` (COSY/NOESY).
+    Either is ``None`` when the shift matched no signal or more than one
+    (the peak is then shown but used in no constraint).
+    """
+
+    kind: str  # "HSQC" | "COSY" | "HMBC" | "NOESY"
+    shift1: float
+    shift2: float
+    signal1: int | None = None
+    signal2: int | None = None
+    intensity: str = ""
+    note: str = ""
+    where: str = ""
+
+    @property
+    def matched(self) -> bool:
+        return self.signal1 is not None and self.signal2 is not None
+
+    @property
+    def label(self) -> str:
+        """``"HMBC 3.67/174.8"``: the kind and the shifts as a chemist writes them."""
+        second = f"{self.shift2:.1f}" if self.kind in HETERONUCLEAR else f"{self.shift2:.2f}"
+        return f"{self.kind} {self.shift1:.2f}/{second}"
+
+
 @dataclass(frozen=True)
 class Problem(_JsonMixin):
     """A validated unknown: formula, spectra, and user constraints."""
@@ -215,6 +256,7 @@ class Problem(_JsonMixin):
     warnings: tuple[str, ...] = ()
     set_aside: tuple[SetAside, ...] = ()  # solvent/impurity signals, not in h1/c13
     c13_complete: bool = False  # every distinct carbon has its own 13C line
+    correlations: tuple[CrossPeak, ...] = ()  # 2D cross peaks (HSQC, COSY, HMBC, NOESY)
 
     @property
     def h_total(self) -> float:
@@ -236,6 +278,7 @@ class Problem(_JsonMixin):
                 "warnings": list(self.warnings),
                 "set_aside": [a.to_json() for a in self.set_aside],
                 "c13_complete": self.c13_complete,
+                "correlations": [c.to_json() for c in self.correlations],
             }
         )
         return out

@@ -77,7 +77,8 @@ class Level:
 
 
 LEVELS: tuple[Level, ...] = (
-    Level("strict", "", MARGIN_STRICT, True, True, 1),
+    Level("strict", "", MARGIN_STRICT, True, True, 0),
+    Level("long-range", "widened to admit 4-bond correlations and overlapped signals", MARGIN_STRICT, True, True, 1),
     Level("no-shift-rules", "turned into scores only", MARGIN_STRICT, True, True, 2),
     Level(
         "no-fragments",

@@ -11,9 +11,11 @@ Each kind of evidence read from the data is one object here.  Every object
 * may narrow the proton-group model before generation
   (:meth:`Evidence.group_bounds`: e.g. DEPT fixes how many CH3, CH2, CH and
   C there are, so H-count readings that contradict it are never generated);
-* carries a ``tier``: the solver's relaxation ladder drops tier-1 evidence
-  first (shift regions, line counts), then tier 2 (DEPT) together with the
-  hard fragments, and says so in ``relaxed``.
+* carries a ``tier``: the solver's relaxation ladder drops tier-0 evidence
+  first (the strict 2-3-bond reading of 2D correlations, which the
+  long-range reading then replaces), then tier 1 (shift regions, line
+  counts), then tier 2 (DEPT, 2D correlations) together with the hard
+  fragments, and says so in ``relaxed``.
 
 The kinds:
 
@@ -34,6 +36,9 @@ The kinds:
     H above 6.2 ppm sit on sp2/sp carbons (or a carbon with two
     heteroatoms) or on O/N/S; H above 9.45 ppm on C=O/C=N carbons or on
     O/N/S (table ``data/h1_regions.csv``).
+:class:`~elucidate.constrain.correlations.Correlations`
+    HSQC, COSY and HMBC cross peaks (module
+    :mod:`elucidate.constrain.correlations`).
 
 Structures are seen through :class:`Graph`: heavy-atom symbols, H counts and
 bonds with Kekulé orders, from a generator structure or an RDKit molecule.
@@ -583,6 +588,9 @@ def read_evidence(problem: Problem) -> tuple[Evidence, ...]:
             needs.append((i, sum(max(1, round(s.h_count)) for s in hits), tuple(s.shift for s in hits)))
     if needs:
         out.append(ProtonRegions(tuple(needs)))
+    from elucidate.constrain.correlations import correlation_evidence
+
+    out.extend(correlation_evidence(problem))
     return tuple(out)
 
 

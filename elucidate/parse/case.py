@@ -12,6 +12,8 @@ Case-file keys (all optional except ``formula`` and ``h1``; see docs/parse.md)::
     require = ["C(=O)O"]              # SMARTS every candidate must contain
     forbid = ["[OX2H]"]               # SMARTS no candidate may contain
     c13_complete = true               # every distinct carbon has its own 13C line
+    hsqc = "3.67/51.5, 2.32/27.5"     # 2D cross peaks dH/dC (also hmbc); "@file.csv" or
+    cosy = "2.32/1.14"                # inline rows [{dH = 3.67, dC = 51.5}]; cosy/noesy: dH/dH
 
 ``h1`` and ``c13`` may also be tables: ``[h1]`` with one of ``text``, ``file``
 or ``peaks`` (an array of inline tables with the same loose column names as a
@@ -23,13 +25,21 @@ from __future__ import annotations
 import contextlib
 import math
 import tomllib
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, Iterator, Sequence
 
 from elucidate.errors import InputError
 from elucidate.model import C13Signal, Formula, H1Signal, Problem, SetAside
 from elucidate.parse.annotations import set_aside_record, set_aside_warnings
+from elucidate.parse.correlations import (
+    RawPeak,
+    correlation_table,
+    inline_correlations,
+    looks_like_correlation_table,
+    match_correlations,
+    read_correlation_text,
+)
 from elucidate.parse.formula import parse_formula
 from elucidate.parse.jcamp import jcamp_c13_rows, jcamp_h1_rows, looks_like_jcamp, read_jcamp
 from elucidate.parse.lexing import short
@@ -50,8 +60,10 @@ __all__ = [
 #: Keys a case file may have at its top level.
 CASE_KEYS = (
     "name", "description", "formula", "solvent", "field_mhz", "field", "h1", "c13", "require", "forbid",
-    "c13_complete",
+    "c13_complete", "hsqc", "cosy", "hmbc", "noesy",
 )
+#: Case-file keys (and options) holding 2D cross peaks, with their experiment.
+_CORRELATION_KEYS = {"hsqc": "HSQC", "cosy": "COSY", "hmbc": "HMBC", "noesy": "NOESY"}
 _SPECTRUM_KEYS = ("text", "file", "peaks")
 #: Peak files larger than this are refused (a peak list is a few kB).
 MAX_FILE_BYTES = 5_000_000
@@ -83,6 +95,7 @@ class _Settings:
     formula_origin: str = "--formula"
     c13_complete: bool = False
     c13_complete_origin: str = "--c13-complete"
+    correlations: dict[str, _Source] = field(default_factory=dict)  # case key -> source
 
 
 def load_problem(
@@ -96,6 +109,10 @@ def load_problem(
     require: Sequence[str] = (),
     forbid: Sequence[str] = (),
     c13_complete: bool | None = None,
+    hsqc: str | None = None,
+    cosy: str | None = None,
+    hmbc: str | None = None,
+    noesy: str | None = None,
 ) -> Problem:
     """Read one unknown: a case file, options, or both (options win).
 
@@ -109,6 +126,10 @@ def load_problem(
     c13_complete : bool, optional
         True: the 13C list is complete (every distinct carbon has its own
         line); overrides the case file's ``c13_complete``.
+    hsqc, cosy, hmbc, noesy : str, optional
+        2D cross peaks as text (``"7.26/128.5, 2.35/21.1"``; dH/dH for
+        COSY and NOESY) or ``@path`` to a CSV/TSV table; override the case
+        file's keys.  See :mod:`elucidate.parse.correlations`.
 
     Returns
     -------
@@ -122,7 +143,9 @@ def load_problem(
     InputError
         One line naming the bad input and where it is.
     """
-    for label, value in (("--formula", formula), ("--h1", h1), ("--c13", c13), ("--solvent", solvent)):
+    options = {"hsqc": hsqc, "cosy": cosy, "hmbc": hmbc, "noesy": noesy}
+    for label, value in (("--formula", formula), ("--h1", h1), ("--c13", c13), ("--solvent", solvent),
+                         *((f"--{k}", v) for k, v in options.items())):
         if value is not None and not isinstance(value, str):
             raise InputError(f"{label} must be text, not {type(value).__name__}")
     if field_mhz is not None and (isinstance(field_mhz, bool) or not isinstance(field_mhz, (int, float))):
@@ -156,6 +179,9 @@ def load_problem(
     if c13_complete is not None:
         settings.c13_complete = c13_complete
         settings.c13_complete_origin = "--c13-complete"
+    for key, value in options.items():
+        if value is not None:
+            settings.correlations[key] = _text_or_file(value, here, f"--{key}")
     return _problem(settings)
 
 
@@ -313,6 +339,9 @@ def _settings_from_toml(text: str, base: Path, origin: str) -> _Settings:
             if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
                 raise InputError(f"{origin}: '{key}' must be a list of SMARTS strings")
             setattr(s, key, tuple(value))
+    for key in _CORRELATION_KEYS:
+        if key in doc:
+            s.correlations[key] = _spectrum(doc[key], key, base, origin)
     if "c13_complete" in doc:
         if not isinstance(doc["c13_complete"], bool):
             raise InputError(f"{origin}: 'c13_complete' must be true or false (no quotes)")
@@ -469,6 +498,14 @@ def _problem(s: _Settings) -> Problem:
     if both:
         raise InputError(f"SMARTS '{short(both[0], 60)}' is both required and forbidden")
     h1_signals: tuple[H1Signal, ...] = h1.signals
+    raw_peaks: list[RawPeak] = []
+    for key, kind in _CORRELATION_KEYS.items():
+        if key in s.correlations:
+            peaks, notes = _read_correlations(s.correlations[key], kind)
+            raw_peaks.extend(peaks)
+            warnings.extend(notes)
+    correlations, notes = match_correlations(raw_peaks, h1_signals, c13_signals)
+    warnings.extend(notes)
     return Problem(
         formula=formula,
         h1=h1_signals,
@@ -482,7 +519,23 @@ def _problem(s: _Settings) -> Problem:
         warnings=tuple(_unique(warnings)),
         set_aside=set_aside,
         c13_complete=s.c13_complete,
+        correlations=correlations,
     )
+
+
+def _read_correlations(source: _Source, kind: str) -> tuple[list[RawPeak], list[str]]:
+    """Raw cross peaks of one 2D list (text, a table or text file, or inline rows)."""
+    if source.kind == "text":
+        return read_correlation_text(source.value, kind, source.origin), []
+    if source.kind == "file":
+        path = Path(source.value)
+        if not path.is_absolute():
+            path = source.base / path
+        text = _read_text(path, f"{kind} file")
+        if path.suffix.lower() in _TABLE_SUFFIXES or looks_like_correlation_table(text, kind):
+            return correlation_table(text, path.name, kind)
+        return read_correlation_text(text, kind, path.name), []
+    return inline_correlations(source.value, kind, source.origin), []
 
 
 def _final_set_aside(items: tuple[SetAside, ...], solvent: str | None) -> tuple[SetAside, ...]:

@@ -22,6 +22,7 @@ def readback_json(problem: Problem) -> dict[str, Any]:
     out["formula_h"] = problem.formula["H"]
     out["h1_count"] = len(problem.h1)
     out["c13_carbons"] = sum(s.carbons for s in problem.c13)
+    out["correlations_used"] = sum(1 for c in problem.correlations if c.matched and c.kind != "NOESY")
     out["caution"] = CAUTION
     return out
 
@@ -93,6 +94,7 @@ def readback_text(problem: Problem) -> str:
     else:
         lines.append("13C signals  none given")
     lines.append("")
+    lines.extend(_correlation_lines(problem))
     if problem.set_aside:
         lines.append(f"Set aside    {len(problem.set_aside)} (not signals of the compound)")
         lines.extend(
@@ -113,6 +115,38 @@ def readback_text(problem: Problem) -> str:
     lines.append("")
     lines.append(CAUTION)
     return "\n".join(lines)
+
+
+def _correlation_lines(problem: Problem) -> list[str]:
+    """The 2D cross peaks, each with the 1D signals it was matched to."""
+    if not problem.correlations:
+        return ["2D           none given", ""]
+    kinds = []
+    for c in problem.correlations:
+        if c.kind not in kinds:
+            kinds.append(c.kind)
+    counts = ", ".join(f"{sum(1 for c in problem.correlations if c.kind == k)} {k}" for k in kinds)
+    lines = [f"2D           {len(problem.correlations)} cross peaks ({counts})"]
+    rows = []
+    for n, c in enumerate(problem.correlations, start=1):
+        hetero = c.kind in ("HSQC", "HMBC")
+        first = f"1H #{c.signal1 + 1} ({problem.h1[c.signal1].shift:.2f})" if c.signal1 is not None else "-"
+        if c.signal2 is None:
+            second = "-"
+        elif hetero:
+            second = f"13C #{c.signal2 + 1} ({problem.c13[c.signal2].shift:.1f})"
+        else:
+            second = f"1H #{c.signal2 + 1} ({problem.h1[c.signal2].shift:.2f})"
+        use = "NOESY: shown only (through space)" if c.kind == "NOESY" else (
+            "constraint" if c.matched else "not used (see warnings)")
+        extra = "; ".join(x for x in (c.intensity, c.note) if x)
+        rows.append((str(n), c.kind, c.label.split(" ", 1)[1], first, second, use, extra))
+    lines.extend(_table(("#", "kind", "shifts", "matches", "and", "use", "note"), rows))
+    lines.append(
+        "             matched within 0.03 ppm of a 1H signal's range and 0.5 ppm of a 13C line"
+    )
+    lines.append("")
+    return lines
 
 
 def _table(header: tuple[str, ...], rows: list[tuple[str, ...]]) -> list[str]:

@@ -1,0 +1,362 @@
+"""2D correlations: reading HSQC/COSY/HMBC cross peaks and using them as hard constraints.
+
+1D data are literature spectra in CDCl3 recalled from memory (the same values
+as tests/benchmarks/data/unknowns.toml, which names each source).  The cross
+peaks are the ones each compound's known structure gives in the standard
+experiments (common practice: HSQC one bond, COSY vicinal 3J H-H, HMBC 2J and
+3J H-C); which of them are listed is said beside each case.
+"""
+
+from __future__ import annotations
+
+import doctest
+import json
+from itertools import combinations
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from elucidate.cli import app
+from elucidate.constrain import correlations as corr_mod
+from elucidate.constrain.correlations import correlation_evidence, signal_totals
+from elucidate.constrain.evidence import Graph, read_evidence
+from elucidate.errors import InputError
+from elucidate.model import C13Signal, CrossPeak, H1Signal, Problem
+from elucidate.parse import correlations as parse_mod
+from elucidate.parse import load_problem, parse_formula
+
+# --- literature 1D data (CDCl3) -------------------------------------------------
+
+# ethyl acetate: Gottlieb, Kotlyar, Nudelman, J. Org. Chem. 1997, 62, 7512 (recalled from memory)
+ETOAC = dict(
+    formula="C4H8O2",
+    h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)",
+    c13="171.4, 60.5, 21.0, 14.2",
+)
+# methyl propanoate: from memory (literature spectrum, CDCl3); 13C from memory
+MEPROP = dict(
+    formula="C4H8O2",
+    h1="3.67 (s, 3H), 2.32 (q, J = 7.6 Hz, 2H), 1.14 (t, J = 7.6 Hz, 3H)",
+    c13="174.9, 51.6, 27.5, 9.2",
+)
+# propyl acetate: from memory (literature spectrum, CDCl3); 13C from memory
+PRACE = dict(
+    formula="C5H10O2",
+    h1="4.02 (t, J = 6.7 Hz, 2H), 2.05 (s, 3H), 1.64 (sext, J = 7.1 Hz, 2H), 0.94 (t, J = 7.4 Hz, 3H)",
+    c13="171.2, 66.1, 22.0, 21.0, 10.4",
+)
+# ethyl vinyl ether: from memory (literature spectrum, CDCl3); the =CH2 H at 4.17 and 3.97 sit on one carbon
+EVE = dict(
+    formula="C4H8O",
+    h1="6.47 (dd, J = 14.3, 6.8 Hz, 1H), 4.17 (dd, J = 14.3, 1.9 Hz, 1H), 3.97 (dd, J = 6.8, 1.9 Hz, 1H), "
+    "3.73 (q, J = 7.0 Hz, 2H), 1.29 (t, J = 7.0 Hz, 3H)",
+    c13="151.8, 86.3, 63.4, 14.5",
+)
+
+
+def strict_of(problem: Problem):
+    return next(e for e in read_evidence(problem) if e.key == "2d")
+
+
+def long_of(problem: Problem):
+    return next(e for e in read_evidence(problem) if e.key == "2d-long-range")
+
+
+# --- parsing ----------------------------------------------------------------------
+
+
+def test_text_forms_and_matching() -> None:
+    p = load_problem(**ETOAC, hsqc="4.12/60.5; 2.05/21.0\n1.26 / 14.2", cosy="4.12/1.26 (s)", hmbc="2.05/171.4 (weak)")
+    kinds = [(c.kind, c.signal1, c.signal2) for c in p.correlations]
+    assert kinds == [("HSQC", 0, 1), ("HSQC", 1, 2), ("HSQC", 2, 3), ("COSY", 0, 2), ("HMBC", 1, 0)]
+    assert p.correlations[3].intensity == "strong" and p.correlations[4].intensity == "weak"
+    assert not p.warnings
+
+
+def test_tolerances() -> None:
+    # 0.03 ppm around a 1H signal, 0.5 ppm around a 13C line (documented in parse/correlations.py)
+    assert parse_mod.H1_MATCH_PPM == 0.03 and parse_mod.C13_MATCH_PPM == 0.5
+    p = load_problem(**ETOAC, hsqc="4.15/60.9, 4.16/60.5, 4.12/61.1")
+    first, second, third = p.correlations
+    assert (first.signal1, first.signal2) == (0, 1)
+    assert second.signal1 is None and third.signal2 is None
+    assert sum("matches no" in w for w in p.warnings) == 2
+
+
+def test_range_signal_and_ambiguous_match() -> None:
+    # a multiplet range matches anywhere inside it; two 13C lines within 0.5 ppm: not used, a warning
+    p = load_problem(formula="C7H8O", h1="7.38-7.27 (m, 5H), 4.67 (s, 2H), 1.90 (br s, 1H)",
+                     c13="140.9, 128.6, 128.3, 127.6, 65.3", hsqc="7.30/128.4, 4.67/65.3")
+    amb, ok = p.correlations
+    assert amb.signal1 == 0 and amb.signal2 is None and ok.matched
+    assert any("matches 2 13C lines (128.6, 128.3)" in w for w in p.warnings)
+
+
+def test_diagonal_and_duplicates() -> None:
+    p = load_problem(**ETOAC, cosy="4.12/4.13, 4.12/1.26, 1.26/4.12")
+    assert [c.matched for c in p.correlations] == [False, True]
+    assert any("diagonal" in w for w in p.warnings)
+
+
+def test_no_13c_list_is_a_warning() -> None:
+    p = load_problem(formula="C4H8O2", h1=ETOAC["h1"], hsqc="4.12/60.5")
+    assert not p.correlations[0].matched
+    assert any("no 13C list" in w for w in p.warnings)
+
+
+def test_case_file_inline_and_csv(tmp_path: Path) -> None:
+    (tmp_path / "hmbc.csv").write_text("dH (ppm),δC,intensity,note\n3.67,174.9,w,OCH3 to C=O\n1.14,174.9,,\n")
+    (tmp_path / "case.toml").write_text(
+        f'formula = "{MEPROP["formula"]}"\nh1 = "{MEPROP["h1"]}"\nc13 = "{MEPROP["c13"]}"\n'
+        'hsqc = [{dH = 3.67, dC = 51.6}, "2.32/27.5", [1.14, 9.2]]\n'
+        'cosy = [{H1 = 2.32, H2 = 1.14}]\n'
+        'hmbc = "@hmbc.csv"\n'
+        'noesy = "3.67/2.32"\n'
+    )
+    p = load_problem(tmp_path / "case.toml")
+    assert [c.kind for c in p.correlations] == ["HSQC"] * 3 + ["COSY", "HMBC", "HMBC", "NOESY"]
+    assert all(c.matched for c in p.correlations)
+    hmbc = p.correlations[4]
+    assert (hmbc.intensity, hmbc.note) == ("weak", "OCH3 to C=O")
+    # NOESY is read but is no constraint
+    assert all(p.kind != "NOESY" for e in correlation_evidence(p) for p in e.peaks)
+    assert p.to_json()["correlations"][0]["kind"] == "HSQC"
+
+
+@pytest.mark.parametrize(
+    "kwargs, message",
+    [
+        (dict(hsqc="4.12-60.5"), r"--hsqc item 1 \(position 1\): '4.12-60.5' is not a cross peak"),
+        (dict(hsqc="4.12/60.5, x/2"), r"item 2 .*is not a cross peak"),
+        (dict(cosy="4.12/60.5"), r"1H shift 60.5 is outside"),
+        (dict(hmbc="4.12/400"), r"13C shift 400 is outside"),
+        (dict(hsqc=" , "), r"no cross peaks"),
+        (dict(hsqc="@missing.csv"), r"HSQC file '.*missing.csv' not found"),
+    ],
+)
+def test_bad_input_one_line(kwargs: dict, message: str) -> None:
+    with pytest.raises(InputError, match=message):
+        load_problem(**ETOAC, **kwargs)
+
+
+def test_bad_table_and_inline(tmp_path: Path) -> None:
+    (tmp_path / "c.csv").write_text("shift,other\n1,2\n")
+    with pytest.raises(InputError, match=r"needs the columns H1 and H2"):
+        load_problem(**ETOAC, cosy=f"@{tmp_path / 'c.csv'}")
+    (tmp_path / "case.toml").write_text(
+        f'formula = "C4H8O2"\nh1 = "{ETOAC["h1"]}"\nhsqc = [{{dH = 4.12, colour = "red"}}]\n'
+    )
+    with pytest.raises(InputError, match=r"hsqc peak 1: unknown key 'colour'"):
+        load_problem(tmp_path / "case.toml")
+
+
+def test_cli_read_shows_correlations() -> None:
+    runner = CliRunner()
+    args = ["read", "--formula", MEPROP["formula"], "--h1", MEPROP["h1"], "--c13", MEPROP["c13"],
+            "--hsqc", "3.67/51.6", "--hmbc", "3.67/174.9", "--cosy", "2.32/1.14", "--noesy", "3.67/2.32"]
+    text = runner.invoke(app, args)
+    assert text.exit_code == 0, text.output
+    assert "2D           4 cross peaks (1 HSQC, 1 COSY, 1 HMBC, 1 NOESY)" in text.output
+    assert "HMBC   3.67/174.9  1H #1 (3.67)  13C #1 (174.9)  constraint" in text.output
+    doc = json.loads(runner.invoke(app, args + ["--json"]).output)
+    assert doc["correlations_used"] == 3
+    assert doc["correlations"][1] == {
+        "kind": "COSY", "shift1": 2.32, "shift2": 1.14, "signal1": 1, "signal2": 2,
+        "intensity": "", "note": "", "where": "--cosy item 1",
+    }
+    bad = runner.invoke(app, ["read", "--formula", "C4H8O2", "--h1", ETOAC["h1"], "--hmbc", "1.2"])
+    assert bad.exit_code == 2 and "Traceback" not in bad.output
+
+
+def test_doctests() -> None:
+    for module in (parse_mod, corr_mod):
+        failed, _ = doctest.testmod(module)
+        assert failed == 0
+
+
+# --- constraint semantics -------------------------------------------------------
+
+
+def test_signal_totals() -> None:
+    # the scorer's integral tolerance +-(0.34 + 0.1 n)
+    assert signal_totals(2.0) == (2,) and signal_totals(6.0) == (6,) and signal_totals(10.0) == (9, 10, 11)
+
+
+def test_cosy_tells_propyl_acetate_from_ethyl_propanoate() -> None:
+    # propyl acetate COSY: OCH2 (4.02) to CH2 (1.64), CH2 (1.64) to CH3 (0.94); all vicinal
+    p = load_problem(**PRACE, cosy="4.02/1.64, 1.64/0.94")
+    strict = strict_of(p)
+    assert strict.reason(Graph.from_smiles("CCCOC(C)=O")) is None
+    assert strict.reason(Graph.from_smiles("CCCC(=O)OC")) is None  # methyl butanoate: same chain, COSY alone cannot tell
+    why = strict.reason(Graph.from_smiles("CCOC(=O)CC"))  # ethyl propanoate: no CH2-CH2
+    assert why is not None and why.startswith("COSY 4.02/1.64 needs the 2H at 4.02 (t) and the 2H at 1.64 (sext)")
+    assert "bonded atoms" in why
+
+
+def test_cosy_ethyl_acetate() -> None:
+    # ethyl acetate COSY 4.12/1.26 (CH2-CH3)
+    p = load_problem(**ETOAC, cosy="4.12/1.26")
+    strict = strict_of(p)
+    assert strict.reason(Graph.from_smiles("CCOC(C)=O")) is None
+    why = strict.reason(Graph.from_smiles("COCC(C)=O"))  # methoxyacetone: CH2 between C=O and O
+    assert "no CH2 (or 2 equivalent CH) and CH3 (or 3 equivalent CH) are that close" in why
+    assert long_of(p).reason(Graph.from_smiles("COCC(C)=O")) is None  # 4J CH2-C(=O)-CH3 in the long-range reading
+
+
+def test_hmbc_tells_methyl_propanoate_from_ethyl_acetate() -> None:
+    # methyl propanoate: HSQC (one bond) and HMBC OCH3 H to C=O (3J), CH3 H to C=O (3J)
+    p = load_problem(**MEPROP, hsqc="3.67/51.6, 2.32/27.5, 1.14/9.2", hmbc="3.67/174.9, 1.14/174.9", cosy="2.32/1.14")
+    strict = strict_of(p)
+    assert strict.reason(Graph.from_smiles("CCC(=O)OC")) is None
+    why = strict.reason(Graph.from_smiles("CCOC(C)=O"))
+    assert why is not None and "HMBC 1.14/174.9" in why
+
+
+def test_hsqc_puts_two_shifts_on_one_ch2() -> None:
+    # ethyl vinyl ether HSQC: 6.47/151.8, 4.17/86.3, 3.97/86.3 (=CH2), 3.73/63.4, 1.29/14.5
+    p = load_problem(**EVE, hsqc="6.47/151.8, 4.17/86.3, 3.97/86.3, 3.73/63.4, 1.29/14.5")
+    strict = strict_of(p)
+    assert strict.group_bounds() == {0: (0, 0), 2: (1, 4)}
+    assert strict.reason(Graph.from_smiles("C=COCC")) is None
+    # (E)-1-methoxypropene has no CH2 at all
+    why = strict.reason(Graph.from_smiles("C/C=C/OC"))
+    assert why is not None and "HSQC" in why
+
+
+def test_dept_label_restricts_the_hsqc_carbon() -> None:
+    p = load_problem(formula="C4H8O2", h1=ETOAC["h1"], c13="171.4 (C), 60.5 (CH3), 21.0, 14.2",
+                     hsqc="4.12/60.5")
+    why = strict_of(p).reason(Graph.from_smiles("CCOC(C)=O"))
+    assert why is not None and "DEPT CH3" in why
+
+
+def test_weak_peak_may_be_four_bonds() -> None:
+    # a weak HMBC peak may be 4J: ethyl acetate CH3 (1.26) to C=O (H-C-C-O-C)
+    strong = load_problem(**ETOAC, cosy="4.12/1.26", hmbc="1.26/171.4")
+    weak = load_problem(**ETOAC, cosy="4.12/1.26", hmbc="1.26/171.4 (w)")
+    g = Graph.from_smiles("CCOC(C)=O")
+    assert strict_of(strong).reason(g) is not None
+    assert strict_of(weak).reason(g) is None
+
+
+# --- soundness: a structure with the cross peaks it implies is always admitted --
+
+
+SOUNDNESS = [
+    # (name, smiles): the full set of HSQC, vicinal COSY and 2J/3J HMBC peaks each
+    # structure implies, one 1H signal per H environment and one 13C line per carbon
+    # class (RDKit symmetry classes, computed independently of the check)
+    ("ethyl acetate", "CCOC(C)=O"),
+    ("methyl propanoate", "CCC(=O)OC"),
+    ("propyl acetate", "CCCOC(C)=O"),
+    ("toluene", "Cc1ccccc1"),
+    ("p-xylene", "Cc1ccc(C)cc1"),
+    ("ethylbenzene", "CCc1ccccc1"),
+    ("isobutyl acetate", "CC(C)COC(C)=O"),
+    ("tert-butyl methyl ether", "COC(C)(C)C"),
+    ("cyclohexanone", "O=C1CCCCC1"),
+    ("naphthalene", "c1ccc2ccccc2c1"),
+    ("2-methylpyridine", "Cc1ccccn1"),
+    ("diethyl ether", "CCOCC"),
+    ("ethanol", "CCO"),
+    ("4-methoxyacetophenone", "COc1ccc(C(C)=O)cc1"),
+    ("N,N-dimethylacetamide", "CN(C)C(C)=O"),
+    ("mesitylene", "Cc1cc(C)cc(C)c1"),
+]
+
+
+def _implied_problem(smiles: str, formula: str) -> Problem:
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+    dist = Chem.GetDistanceMatrix(mol)
+    env: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetTotalNumHs():
+            env.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    carbons: dict[int, list[int]] = {}
+    for a in mol.GetAtoms():
+        if a.GetSymbol() == "C":
+            carbons.setdefault(ranks[a.GetIdx()], []).append(a.GetIdx())
+    envs = sorted(env.values())
+    lines = sorted(carbons.values())
+    h1 = tuple(
+        H1Signal(1.0 + 0.1 * i, 1.0 + 0.1 * i, 1.0 + 0.1 * i, "s", (),
+                 float(sum(mol.GetAtomWithIdx(x).GetTotalNumHs() for x in atoms)),
+                 float(sum(mol.GetAtomWithIdx(x).GetTotalNumHs() for x in atoms)))
+        for i, atoms in enumerate(envs)
+    )
+    # shifts 55-62 ppm: a window of constrain/data/c13_regions.csv that asks nothing of a carbon
+    c13 = tuple(C13Signal(55.0 + 0.4 * j, len(atoms)) for j, atoms in enumerate(lines))
+    peaks = []
+    for i, atoms in enumerate(envs):
+        for j, cs in enumerate(lines):
+            d = min(dist[a][c] for a in atoms for c in cs)
+            if d == 0:
+                peaks.append(CrossPeak("HSQC", h1[i].shift, c13[j].shift, i, j))
+            elif d in (1, 2):
+                peaks.append(CrossPeak("HMBC", h1[i].shift, c13[j].shift, i, j))
+    for i, k in combinations(range(len(envs)), 2):
+        if min(dist[a][b] for a in envs[i] for b in envs[k]) == 1:
+            peaks.append(CrossPeak("COSY", h1[i].shift, h1[k].shift, i, k))
+    return Problem(parse_formula(formula), h1, c13, correlations=tuple(peaks))
+
+
+@pytest.mark.parametrize("name, smiles", SOUNDNESS)
+def test_true_structure_is_admitted(name: str, smiles: str) -> None:
+    from rdkit import Chem
+    from rdkit.Chem.rdMolDescriptors import CalcMolFormula
+
+    problem = _implied_problem(smiles, CalcMolFormula(Chem.MolFromSmiles(smiles)))
+    strict, wide = correlation_evidence(problem)
+    assert len(strict.peaks) >= 3
+    g = Graph.from_smiles(smiles)
+    assert strict.reason(g) is None, name
+    assert wide.reason(g) is None, name
+
+
+def test_implied_peaks_discriminate_isomers() -> None:
+    # the peaks p-xylene implies are not met by o- or m-xylene or ethylbenzene
+    problem = _implied_problem("Cc1ccc(C)cc1", "C8H10")
+    strict = correlation_evidence(problem)[0]
+    for other in ("Cc1ccccc1C", "Cc1cccc(C)c1", "CCc1ccccc1"):
+        assert strict.reason(Graph.from_smiles(other)) is not None, other
+
+
+# --- solve ------------------------------------------------------------------------
+
+
+def test_solve_builds_fewer_structures_with_2d() -> None:
+    from elucidate.solve import solve
+
+    plain = solve(load_problem(**MEPROP), time_limit_s=60)
+    two_d = solve(load_problem(**MEPROP, hsqc="3.67/51.6, 2.32/27.5, 1.14/9.2",
+                               hmbc="3.67/174.9, 1.14/174.9", cosy="2.32/1.14"), time_limit_s=60)
+    built = dict(plain.counts)["generated"], dict(two_d.counts)["generated"]
+    assert built[1] < built[0]
+    assert [c.smiles for c in two_d.candidates] == ["CCC(=O)OC"]
+    assert plain.candidates[0].smiles == "CCC(=O)OC"
+    assert any(k.startswith("HSQC/COSY/HMBC correlations not met") for k, _ in two_d.rejected_counts)
+    assert any("HSQC/COSY/HMBC correlations" in e for e in two_d.evidence)
+
+
+def test_solve_relaxes_to_four_bonds() -> None:
+    # ethyl acetate with a 4J HMBC peak (CH3 1.26 to C=O) not marked weak: the strict
+    # reading rejects the truth, the long-range level finds it and says so
+    from elucidate.solve import solve
+
+    result = solve(load_problem(**ETOAC, hsqc="4.12/60.5, 2.05/21.0, 1.26/14.2", cosy="4.12/1.26",
+                                hmbc="1.26/171.4"), time_limit_s=60)
+    assert result.candidates[0].smiles == "CCOC(C)=O"
+    assert result.relaxed[0].startswith("the 2-3-bond reading of the 2D correlations")
+    assert "4-bond" in result.relaxed[0]
+
+
+def test_explain_names_the_cross_peak() -> None:
+    from elucidate.solve import explain
+
+    e = explain(load_problem(**PRACE, cosy="4.02/1.64, 1.64/0.94"), "CCOC(=O)CC", time_limit_s=60)
+    assert e.verdict == "rejected"
+    assert any(r.startswith("COSY 4.02/1.64 needs") for r in e.reasons)

@@ -17,10 +17,11 @@ whether the search was complete, the relaxations taken and the case's wall
 time.  Then one table per 13C setting with, per size band (<= C9, C10-C14,
 C15-C20): cases, found, top-1, top-3, complete, median and max time.
 
-With ``--jobs N`` cases run in N separate processes; every time printed is
-that case's own wall time (on a shared 2-core machine parallel runs slow
-each other down).  A case that overruns its time limit by far is stopped
-and counted as not found.  Not collected by pytest: timings are printed,
+Cases run in worker processes, ``--jobs N`` of them at a time (default 1);
+every time printed is that case's own wall time (on a shared 2-core machine
+parallel runs slow each other down).  A case that overruns its time limit by
+far (1.5 x limit + 30 s) is stopped, its worker replaced, and the case
+counted as not found.  Not collected by pytest: timings are printed,
 never asserted.
 """
 
@@ -214,59 +215,110 @@ def _warm_up() -> None:
     solve(problem, top=TOP, time_limit_s=30.0)
 
 
-def _child(job: Job, conn: Any) -> None:
+def _worker(conn: Any) -> None:
+    """Worker process: warm up, say ready, then solve the jobs it is sent until None."""
     _warm_up()
-    try:
+    conn.send("ready")
+    while True:
+        job = conn.recv()
+        if job is None:
+            break
         conn.send(run_job(job))
-    finally:
-        conn.close()
+    conn.close()
+
+
+@dataclass
+class _Slot:
+    """One worker process and the job it is on (None: idle, or still warming up)."""
+
+    proc: Any
+    conn: Any
+    ready: bool = False
+    job: Job | None = None
+    started: float = 0.0
 
 
 def run_all(jobs: list[Job], n_jobs: int, print_line: Any) -> list[Outcome]:
-    """Run jobs (in order, ``n_jobs`` at a time); print each line in case order."""
-    if n_jobs <= 1:
-        out = []
-        for job in jobs:
-            out.append(run_job(job))
-            print_line(out[-1])
-        return out
+    """Run jobs on ``n_jobs`` worker processes; print each line in case order.
+
+    Each case runs in a worker process, so one that overruns its time limit
+    by far (``time_limit * GRACE_FACTOR + GRACE_S``) can be stopped: its
+    worker is terminated (by its own handle) and a fresh one takes its place.
+    """
     ctx = mp.get_context("spawn")
     pending = list(jobs)
-    running: dict[int, tuple[Job, Any, Any, float]] = {}
+    slots: list[_Slot] = []
     done: dict[int, Outcome] = {}
+    order = [j.index for j in jobs]
     next_print = 0
-    while pending or running:
-        while pending and len(running) < n_jobs:
-            job = pending.pop(0)
-            parent, child = ctx.Pipe(duplex=False)
-            proc = ctx.Process(target=_child, args=(job, child), daemon=True)
-            proc.start()
-            child.close()
-            running[job.index] = (job, proc, parent, time.perf_counter())
-        time.sleep(0.05)
-        for index, (job, proc, conn, started) in list(running.items()):
-            waited = time.perf_counter() - started
-            outcome = None
-            if conn.poll():
-                try:
-                    outcome = conn.recv()
-                except EOFError:
-                    outcome = Outcome(job, None, 0, False, 0, waited, "-", "worker died")
-            elif not proc.is_alive():
-                outcome = Outcome(job, None, 0, False, 0, waited, "-", f"worker exited ({proc.exitcode})")
-            elif waited > job.time_limit * GRACE_FACTOR + GRACE_S:
-                proc.terminate()  # our own child, by its handle
-                outcome = Outcome(job, None, 0, False, 0, waited, "-", "stopped: far past its time limit")
-            if outcome is None:
-                continue
-            proc.join(5)
-            conn.close()
-            del running[index]
-            done[index] = outcome
-        order = [j.index for j in jobs]
-        while next_print < len(order) and order[next_print] in done:
-            print_line(done[order[next_print]])
-            next_print += 1
+
+    def spawn() -> _Slot:
+        parent, child = ctx.Pipe()
+        proc = ctx.Process(target=_worker, args=(child,), daemon=True)
+        proc.start()
+        child.close()
+        return _Slot(proc, parent)
+
+    def retire(slot: _Slot, stop: bool) -> None:
+        if stop:
+            slot.proc.terminate()
+        slot.proc.join(5)
+        slot.conn.close()
+        slots.remove(slot)
+
+    try:
+        while len(done) < len(jobs):
+            while len(slots) < min(n_jobs, len(pending) + sum(s.job is not None for s in slots)):
+                slots.append(spawn())
+            for slot in list(slots):
+                outcome = None
+                job = slot.job
+                if slot.conn.poll():
+                    try:
+                        message = slot.conn.recv()
+                    except EOFError:
+                        message = None
+                    if message == "ready":
+                        slot.ready = True
+                    elif isinstance(message, Outcome):
+                        outcome, slot.job = message, None
+                    else:
+                        if job is not None:
+                            outcome = Outcome(job, None, 0, False, 0, time.perf_counter() - slot.started, "-",
+                                              "worker died")
+                        retire(slot, stop=True)
+                        slot = None
+                elif not slot.proc.is_alive():
+                    if job is not None:
+                        outcome = Outcome(job, None, 0, False, 0, time.perf_counter() - slot.started, "-",
+                                          f"worker exited ({slot.proc.exitcode})")
+                    retire(slot, stop=False)
+                    slot = None
+                elif job is not None and time.perf_counter() - slot.started > job.time_limit * GRACE_FACTOR + GRACE_S:
+                    outcome = Outcome(job, None, 0, False, 0, time.perf_counter() - slot.started, "-",
+                                      "stopped: far past its time limit")
+                    retire(slot, stop=True)
+                    slot = None
+                if outcome is not None:
+                    done[outcome.job.index] = outcome
+                if slot is not None and slot.ready and slot.job is None and pending:
+                    slot.job = pending.pop(0)
+                    slot.started = time.perf_counter()
+                    slot.conn.send(slot.job)
+            while next_print < len(order) and order[next_print] in done:
+                print_line(done[order[next_print]])
+                next_print += 1
+            time.sleep(0.02)
+    finally:
+        for slot in list(slots):
+            try:
+                slot.conn.send(None)
+            except (OSError, ValueError):
+                pass
+            slot.proc.join(5)
+            if slot.proc.is_alive():
+                slot.proc.terminate()
+                slot.proc.join(5)
     return [done[j.index] for j in jobs]
 
 
@@ -355,7 +407,6 @@ def main(argv: list[str] | None = None) -> int:
         print("no cases")
         return 1
 
-    _warm_up()
     tables: list[list[str]] = []
     print()
     print(HEADER)

@@ -13,8 +13,11 @@ Pattern keys (all optional):
     same_j, sharp, broad}``; each must match a different observed signal.
     ``same_j`` asks for a coupling shared (±0.6 Hz) with the previous
     signal of the list.
+``all_ortho``
+    every ring H of the window has an ortho neighbour: a 1H signal there is
+    a multiplet or shows a J of 6.5 Hz or more (no isolated ring H).
 ``aromatic_window``, ``aromatic_h``, ``within``
-    the H of all signals inside ``aromatic_window`` add up to ``aromatic_h``
+    the H of all sharp signals inside ``aromatic_window`` add up to ``aromatic_h``
     and all those signals lie inside ``within``.
 ``min_carbons``, ``min_dou``, ``min_oxygens``, ``elements``
     conditions on the formula.
@@ -234,6 +237,7 @@ class FragmentRule:
     weight: float = 1.0
     signals: tuple[SignalPattern, ...] = ()
     aromatic_window: tuple[float, float] | None = None
+    all_ortho: bool = False
     aromatic_h: int | None = None
     within: tuple[float, float] | None = None
     ring_h: int = 0
@@ -271,6 +275,17 @@ def _pair(value: object, where: str) -> tuple[float, float]:
     return float(value[0]), float(value[1])
 
 
+def _ortho_coupled(s: H1Signal) -> bool:
+    """A 1H signal that could be a ring H with an ortho neighbour: several H,
+    a multiplet or range, or a reported J of at least 6.5 Hz (common practice:
+    J(ortho) 7-9 Hz)."""
+    if round(s.h_count) > 1 or s.multiplicity == "m" or s.shift_low != s.shift_high:
+        return True
+    if not s.couplings:
+        return s.multiplicity != "s"
+    return any(j >= 6.5 for j in s.couplings)
+
+
 def _rule(key: str, data: dict) -> FragmentRule:
     where = f"{key}.toml"
     for required in ("name", "smiles", "strength", "source"):
@@ -303,6 +318,7 @@ def _rule(key: str, data: dict) -> FragmentRule:
         weight=float(data.get("weight", 1.0)),
         signals=tuple(pats),
         aromatic_window=_pair(data["aromatic_window"], where) if "aromatic_window" in data else None,
+        all_ortho=bool(data.get("all_ortho", False)),
         aromatic_h=data.get("aromatic_h"),
         within=_pair(data["within"], where) if "within" in data else None,
         ring_h=int(data.get("ring_h", 0)),
@@ -405,8 +421,11 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
         used: list[int] = []
         if rule.aromatic_window is not None:
             lo, hi = rule.aromatic_window
-            inside = [i for i, s in enumerate(problem.h1) if lo <= s.shift <= hi]
+            # broad signals in the window are NH/OH (common practice), not ring H
+            inside = [i for i, s in enumerate(problem.h1) if lo <= s.shift <= hi and not s.broad]
             if sum(round(problem.h1[i].h_count) for i in inside) != rule.aromatic_h:
+                continue
+            if rule.all_ortho and not all(_ortho_coupled(problem.h1[i]) for i in inside):
                 continue
             if rule.within is not None and not all(
                 rule.within[0] <= problem.h1[i].shift <= rule.within[1] for i in inside

@@ -269,15 +269,18 @@ def _read_folder(folder: Path) -> BatchInput:
     if not files:
         raise InputError(f"batch folder '{folder}' has no *.toml case files")
     raw: list[tuple[str, dict[str, Any] | None, str, str | None]] = []
+    stems = []
     for p in files:
         origin = p.name
+        stems.append(p.stem)
         try:
             doc = tomllib.loads(_read_text(p))
         except (tomllib.TOMLDecodeError, InputError) as err:
             raw.append((p.stem, None, origin, f"{origin}: not valid TOML ({err})"))
             continue
-        raw.append((p.stem, doc, origin, None))
-    return _build(raw, folder, "folder", keep_stem=True)
+        name = doc.get("name")
+        raw.append((name if isinstance(name, str) and name.strip() else p.stem, doc, origin, None))
+    return _build(raw, folder, "folder", stems=stems)
 
 
 def _read_multi_toml(path: Path) -> BatchInput:
@@ -302,7 +305,7 @@ def _read_multi_toml(path: Path) -> BatchInput:
             continue
         name = table.get("name")
         raw.append((name if isinstance(name, str) and name.strip() else f"case-{i}", table, origin, None))
-    return _build(raw, path.parent, "toml", keep_stem=False)
+    return _build(raw, path.parent, "toml")
 
 
 def _read_manifest(path: Path) -> BatchInput:
@@ -343,7 +346,7 @@ def _read_manifest(path: Path) -> BatchInput:
         raw.append((name, table, origin, error))
     if not raw:
         raise InputError(f"{path.name}: the manifest has a header but no cases")
-    out = _build(raw, path.parent, "csv", keep_stem=False)
+    out = _build(raw, path.parent, "csv")
     return BatchInput(out.cases, tuple(sorted(set(out.ignored_keys) | set(ignored))), "csv")
 
 
@@ -367,15 +370,18 @@ def _manifest_value(role: str, cell: str, origin: str) -> Any:
 
 
 def _build(
-    raw: Sequence[tuple[str, dict[str, Any] | None, str, str | None]], base: Path, kind: str, *, keep_stem: bool
+    raw: Sequence[tuple[str, dict[str, Any] | None, str, str | None]], base: Path, kind: str,
+    *, stems: Sequence[str] | None = None,
 ) -> BatchInput:
+    """Cases from (name, table, origin, error) rows; result files are named
+    after ``stems`` (a folder's file names) or else after the case names."""
     names: set[str] = set()
-    stems: set[str] = set()
+    used: set[str] = set()
     ignored: set[str] = set()
     cases = []
     for index, (name, doc, origin, error) in enumerate(raw):
         name = _unique(name.strip() or f"case-{index + 1}", names, " ({})")
-        stem = _unique(_stem(name, keep_stem), stems, "-{}")
+        stem = _unique(_stem(stems[index] if stems else name, bool(stems)), used, "-{}")
         text = ""
         digest_parts: list[bytes] = []
         if doc is not None and error is None:

@@ -19,7 +19,7 @@ import typer
 from elucidate import CAUTION, __version__
 from elucidate.errors import InputError
 
-__all__ = ["app", "main", "EXIT_INPUT", "EXIT_LIMIT"]
+__all__ = ["app", "main", "EXIT_INPUT", "EXIT_LIMIT", "EXIT_CASES_FAILED"]
 
 #: Exit code for bad user input.
 EXIT_INPUT = 2
@@ -569,6 +569,80 @@ def explain_command(
             progress=progress,
         )
     _deliver(explanation, report, sdf, json_out, write_explain_html, write_explain_sdf, render_explain)
+
+
+# ------------------------------------------------------------------ batch
+
+#: Exit code of ``batch`` when at least one case failed (the others are kept).
+EXIT_CASES_FAILED = 1
+
+
+@app.command("batch")
+@user_errors
+def batch_command(
+    source: Annotated[
+        Path,
+        typer.Argument(
+            metavar="INPUT",
+            help="A folder of *.toml case files, one TOML file of [[case]] tables, or a CSV manifest "
+            "(columns formula, h1, c13, solvent, name ...).",
+            show_default=False,
+        ),
+    ],
+    out: Annotated[
+        Optional[Path],
+        typer.Option("--out", metavar="DIR", help="Result folder (default: <input>-results beside the input).",
+                     file_okay=False),
+    ] = None,
+    workers: Annotated[
+        Optional[int], typer.Option("--workers", help="Local worker processes (default 1).", min=1)
+    ] = None,
+    time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
+    top: TopOpt = 10,
+    report: Annotated[
+        bool, typer.Option("--report", help="Also write one HTML page per case and an index.html linking them.")
+    ] = False,
+    cluster: Annotated[
+        Optional[str],
+        typer.Option("--cluster", metavar="ADDRESS",
+                     help="Run the cases on a Dask distributed scheduler, e.g. tcp://host:8786 "
+                     "(needs the 'cluster' extra)."),
+    ] = None,
+    retry_failed: Annotated[
+        bool, typer.Option("--retry-failed", help="Solve again the cases whose recorded result is an error.")
+    ] = False,
+) -> None:
+    """Solve many unknowns: one JSON result per case and a summary.csv.
+
+    Each result is written as soon as its case is done, so a run that is
+    stopped resumes where it was: cases whose result exists for the same
+    input and settings are skipped. A case that fails (bad input, crash,
+    time-out) records its error and the batch goes on. Exit code 0 if every
+    case succeeded, 1 if any failed, 2 for an unusable INPUT or option.
+    """
+    from elucidate.batch import BatchSettings, default_out_dir, read_cases, run_batch
+    from elucidate.report.batch import BatchProgress
+
+    if cluster is not None and workers is not None:
+        raise InputError("give --workers (local processes) or --cluster (a Dask scheduler), not both")
+    batch = read_cases(source)
+    if batch.ignored_keys:
+        warn(f"{source}: keys not used for solving, ignored: {', '.join(batch.ignored_keys)}")
+    out_dir = out if out is not None else default_out_dir(source)
+    settings = BatchSettings(top=top, time_limit_s=_time_limit(time_limit), report=report)
+    result = run_batch(
+        batch, out_dir, settings, workers=workers or 1, cluster=cluster, retry_failed=retry_failed,
+        events=BatchProgress(),
+    )
+    typer.echo(
+        f"{result.total} case(s): {result.solved} solved now, {result.skipped} already done, "
+        f"{len(result.failed)} failed; results in {out_dir}",
+        err=True,
+    )
+    if result.failed:
+        shown = ", ".join(result.failed[:5]) + (f" and {len(result.failed) - 5} more" if len(result.failed) > 5 else "")
+        typer.echo(f"failed: {shown} (see summary.csv)", err=True)
+        raise typer.Exit(EXIT_CASES_FAILED)
 
 
 

@@ -36,6 +36,7 @@ __all__ = [
     "Candidate",
     "Rejection",
     "SolveResult",
+    "NextMeasurement",
     "Explanation",
     "multiplicity_pattern",
 ]
@@ -430,6 +431,28 @@ class Rejection(_JsonMixin):
 
 
 @dataclass(frozen=True)
+class NextMeasurement(_JsonMixin):
+    """One observation that would tell close candidates apart (see
+    :mod:`elucidate.advise`).
+
+    ``ranks`` are the candidates compared and ``predicted`` the value each
+    predicts, in the same order.  ``discrimination`` is the smallest, over
+    the pairs of compared candidates, of the predicted difference divided by
+    the prediction's typical error (``basis`` says how); ``separated`` is the
+    number of pairs it tells apart (figure of at least 2) out of ``pairs``.
+    """
+
+    experiment: str  # "13C", "DEPT", "COSY", "HMBC", "1H coupling", "D2O shake"
+    observation: str
+    ranks: tuple[int, ...]
+    predicted: tuple[str, ...]
+    discrimination: float
+    separated: int
+    pairs: int
+    basis: str = ""
+
+
+@dataclass(frozen=True)
 class SolveResult(_JsonMixin):
     """Everything ``solve`` found for one problem."""
 
@@ -445,6 +468,7 @@ class SolveResult(_JsonMixin):
     stopped_by: str | None = None
     not_searched: tuple[str, ...] = ()  # hypotheses / levels a limit left unsearched
     evidence: tuple[str, ...] = ()  # the hard evidence constraints, in words
+    next_measurements: tuple[NextMeasurement, ...] = ()  # what would tell the top candidates apart
 
     def to_json(self) -> dict[str, Any]:
         out = self.problem.formula.to_json()
@@ -463,6 +487,7 @@ class SolveResult(_JsonMixin):
                 },
                 "input": self.problem.to_json(),
                 "warnings": list(self.warnings),
+                "next_measurements": [m.to_json() for m in self.next_measurements],
             }
         )
         return out

@@ -29,6 +29,7 @@ import time
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from elucidate.advise import next_measurements
 from elucidate.constrain.evidence import Evidence, Graph, read_evidence
 from elucidate.constrain.fragments import (
     FragmentMatch,
@@ -680,6 +681,7 @@ def _result(run: _Run, ranked: list[_Entry], top: int) -> SolveResult:
         stopped_by=run.stopped_by,
         not_searched=tuple(run.not_searched),
         evidence=tuple(f"{e.title}: {e.describe()}" for e in run.evidence),
+        next_measurements=next_measurements(run.problem, candidates),
     )
 
 

@@ -243,7 +243,7 @@ def _page(
         _caution(),
     ]
     if explain is None:
-        parts += [_status(result), _overview(result, shown)]
+        parts += [_status(result), _overview(result, shown), _next_measurements(result)]
     else:
         parts.append(explain)
     for cand in shown:
@@ -309,6 +309,30 @@ def _overview(result: SolveResult, shown: Sequence[Candidate]) -> str:
         "<table><thead><tr><th class=\"num\">rank</th><th>SMILES</th>"
         "<th class=\"num\" title=\"lower is better\">fit</th><th>verdict</th><th>largest Δ</th></tr></thead>"
         "<tbody>" + "".join(rows) + "</tbody></table>" + more
+    )
+
+
+def _next_measurements(result: SolveResult) -> str:
+    """The "What to measure next" panel ('' when the top candidates are told apart)."""
+    found = result.next_measurements
+    if not found:
+        return ""
+    ranks = found[0].ranks
+    head = "".join(f'<th>candidate <a href="#candidate-{r}">{r}</a></th>' for r in ranks)
+    rows = []
+    for m in found:
+        cells = "".join(f"<td>{escape(v)}</td>" for v in m.predicted)
+        figure = f"{m.discrimination:.1f}" + (f" ({m.separated}/{m.pairs} pairs)" if m.pairs > 1 else "")
+        rows.append(
+            f"<tr><td>{escape(m.experiment)}</td><td>{escape(m.observation)}</td>{cells}"
+            f'<td class="num" title="{escape(m.basis)}">{escape(figure)}</td></tr>'
+        )
+    return (
+        '<section id="next-measurements"><h2>What to measure next</h2>'
+        f"<p>Candidates {', '.join(str(r) for r in ranks)} fit about equally well. These observations "
+        "would tell them apart; figure = predicted difference / typical error of the prediction.</p>"
+        f"<table><thead><tr><th>experiment</th><th>observation</th>{head}"
+        '<th class="num">figure</th></tr></thead><tbody>' + "".join(rows) + "</tbody></table></section>"
     )
 
 

@@ -114,6 +114,7 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
             lines += [f"note: {n}" for n in best.notes]
     else:
         lines.append("No candidate is consistent with the data.")
+    lines += _measurement_lines(result)
     rej = _rejection_rows(result)
     if rej:
         total = sum(n for _, n in result.rejected_counts)
@@ -123,6 +124,33 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
     if notes:
         lines += ["", *notes]
     lines += ["", f"Caution: {CAUTION}"]
+    return lines
+
+
+MEASURE_HEADING = "What to measure next"
+
+
+def _measurement_lines(result: SolveResult) -> list[str]:
+    """The "What to measure next" block (empty when the top candidates are
+    already told apart)."""
+    found = getattr(result, "next_measurements", ())
+    if not found:
+        return []
+    ranks = ", ".join(str(r) for r in found[0].ranks)
+    lines = [
+        "",
+        MEASURE_HEADING,
+        f"Candidates {ranks} fit about equally well. These observations would tell them apart "
+        "(figure: predicted difference / typical error):",
+    ]
+    rows = [("experiment", "observation", "predicted (candidate: value)", "figure")]
+    for m in found:
+        values = "; ".join(f"{r}: {v}" for r, v in zip(m.ranks, m.predicted))
+        figure = f"{m.discrimination:.1f}"
+        if m.pairs > 1:
+            figure += f" ({m.separated}/{m.pairs} pairs)"
+        rows.append((m.experiment, m.observation, values, figure))
+    lines += _align(rows, (False, False, False, True))
     return lines
 
 
@@ -290,6 +318,11 @@ def _rich_solve(result: SolveResult, stream: TextIO, top: int | None) -> None:
                 console.print(Text(f"note: {note}", style="dim"))
     else:
         console.print(Text("No candidate is consistent with the data.", style="bold red"))
+    measure = _measurement_lines(result)
+    if measure:
+        console.print(Text(measure[1], style="bold"))
+        for line in measure[2:]:
+            console.print(Text(line))
     rej = _rejection_rows(result)
     if rej:
         total = sum(n for _, n in result.rejected_counts)

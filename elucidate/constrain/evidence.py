@@ -247,8 +247,9 @@ def proton_regions() -> tuple[Region, ...]:
 class Evidence:
     """Base class: one kind of evidence as a hard, relaxable constraint.
 
-    Subclasses set ``key`` (short id), ``title`` (words), ``tier`` (1:
-    relaxed first; 2: relaxed with the hard fragments) and ``relaxation``
+    Subclasses set ``key`` (short id), ``title`` (words), ``tier`` (0:
+    relaxed first, replaced by a wider reading; 1: relaxed next; 2: relaxed
+    with the hard fragments) and ``relaxation``
     (the phrase listed in ``relaxed`` when it is dropped), and implement
     :meth:`reason`.
     """

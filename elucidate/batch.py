@@ -574,13 +574,20 @@ def _atomic_write(path: Path, text: str) -> None:
     """Write ``text`` to ``path`` so that a reader (or a kill) sees either the
     old file or the complete new one: a temporary file in the same folder,
     flushed to disk, then :func:`os.replace`."""
-    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    try:
+        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".tmp")
+    except OSError as err:
+        raise InputError(f"--out {path.parent}: cannot write ({err.strerror or err})") from err
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
             fh.write(text)
             fh.flush()
             os.fsync(fh.fileno())
         os.replace(tmp, path)
+    except OSError as err:
+        with _suppress_os():
+            os.unlink(tmp)
+        raise InputError(f"--out {path}: cannot write ({err.strerror or err})") from err
     except BaseException:
         with _suppress_os():
             os.unlink(tmp)

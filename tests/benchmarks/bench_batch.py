@@ -71,12 +71,19 @@ def main(argv: list[str] | None = None) -> int:
         )
         batch = time.monotonic() - t0
         written = len(list(out.glob("*.json")))
+        advised = 0
+        for path in out.glob("*.json"):
+            import json
+
+            if json.loads(path.read_text(encoding="utf-8")).get("next_measurements"):
+                advised += 1
 
     print(f"cases {len(cases)}  time limit {args.time_limit:g} s  cpus {os.cpu_count()}  "
           f"load average {os.getloadavg()[0]:.1f}")
     print(f"sum of single solve times   {single:8.1f} s   (slowest: {slowest[1]}, {slowest[0]:.1f} s)")
     print(f"batch --workers {args.workers:<2}          {batch:8.1f} s   exit code {run.returncode}, "
           f"{written} result files")
+    print(f"cases with 'what to measure next' advice: {advised}")
     print(f"speed-up                    {single / batch if batch else float('nan'):8.2f} x")
     if run.returncode not in (0, 1):
         print(run.stderr.strip().splitlines()[-1] if run.stderr.strip() else "(no stderr)")

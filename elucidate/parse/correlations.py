@@ -36,6 +36,7 @@ from elucidate.errors import InputError
 from elucidate.model import HETERONUCLEAR, C13Signal, CrossPeak, H1Signal
 from elucidate.parse.lexing import NUMBER, short, to_float
 from elucidate.parse.peaks import C13_SHIFT_RANGE, H1_SHIFT_RANGE
+from elucidate.parse.tables import _cells, _delimiter
 
 __all__ = [
     "H1_MATCH_PPM",
@@ -219,21 +220,6 @@ def looks_like_correlation_table(text: str, kind: str) -> bool:
         roles = {_role(c, kind) for c in cells}
         return set(_ends(kind)) <= roles
     return False
-
-
-def _delimiter(header: str) -> str:
-    if "\t" in header:
-        return "\t"
-    if ";" in header and "," not in header:
-        return ";"
-    return ","
-
-
-def _cells(line: str, delimiter: str) -> list[str]:
-    try:
-        return next(csv.reader([line], delimiter=delimiter))
-    except (csv.Error, StopIteration):
-        return [line]
 
 
 def correlation_table(text: str, name: str, kind: str) -> tuple[list[RawPeak], list[str]]:

@@ -400,16 +400,21 @@ class CarbonRegions(Evidence):
     tier = 1
     relaxation = "13C shift-region rules"
 
-    def demands(self) -> list[tuple[float, str | None, int]]:
+    def demands(self) -> tuple[tuple[float, str | None, int], ...]:
         """One (shift, need, H or -1) per carbon the lines ask for."""
-        out = []
+        return self._demands
+
+    @functools.cached_property
+    def _demands(self) -> tuple[tuple[float, str | None, int], ...]:
+        # computed once per object: reason() runs on every structure built
+        out: list[tuple[float, str | None, int]] = []
         for shift, n, h in self.lines:
             region = next((r for r in carbon_regions() if r.holds(shift)), None)
             need = region.needs if region else None
             if need is None and h < 0:
                 continue
             out += [(shift, need, h)] * max(1, n)
-        return out
+        return tuple(out)
 
     def min_unsaturated_carbons(self, formula: Any) -> int:
         dem = self.demands()

@@ -15,7 +15,6 @@ the project's own parser.
 
 from __future__ import annotations
 
-import csv
 import re
 import tomllib
 from collections import Counter, defaultdict
@@ -26,6 +25,8 @@ import pytest
 from rdkit import Chem, RDLogger
 from rdkit.Chem import Descriptors, rdMolDescriptors
 
+from shift_tables import by_compound, parse_smiles, read_rows, symmetry_ranks
+
 RDLogger.DisableLog("rdApp.*")
 
 __all__: list[str] = []
@@ -35,7 +36,6 @@ SHIFTS = DATA / "shifts_1h.csv"
 UNKNOWNS = DATA / "unknowns.toml"
 LARGE = DATA / "unknowns_large.toml"
 
-COLUMNS = ["compound", "smiles", "map", "shift", "class", "solvent", "source"]
 CLASSES = {
     "sp3-one-group",
     "sp3-multi",
@@ -96,18 +96,6 @@ DEPT_H = {"C": 0, "CH": 1, "CH2": 2, "CH3": 3}
 MULTIPLICITY = re.compile(r"^(s|br s|m|quint|sext|sept|[dtq]{1,3})$")
 
 
-def _mol(smiles: str) -> Chem.Mol:
-    mol = Chem.MolFromSmiles(smiles)
-    assert mol is not None, f"RDKit cannot parse SMILES {smiles!r}"
-    return mol
-
-
-def _symmetry_ranks(mol: Chem.Mol) -> list[int]:
-    """Topological symmetry classes, ignoring the atom-map labels themselves."""
-    bare = Chem.Mol(mol)
-    for atom in bare.GetAtoms():
-        atom.SetAtomMapNum(0)
-    return list(Chem.CanonicalRankAtoms(bare, breakTies=False))
 
 
 def _peaks(h1: str) -> list[tuple[float, str, int]]:
@@ -129,18 +117,12 @@ def _peaks(h1: str) -> list[tuple[float, str, int]]:
 
 @pytest.fixture(scope="module")
 def shift_rows() -> list[dict[str, str]]:
-    with SHIFTS.open(newline="", encoding="utf-8") as fh:
-        reader = csv.DictReader(fh)
-        assert reader.fieldnames == COLUMNS
-        return list(reader)
+    return read_rows(SHIFTS)
 
 
 @pytest.fixture(scope="module")
 def shift_compounds(shift_rows: list[dict[str, str]]) -> dict[str, list[dict[str, str]]]:
-    by_name: dict[str, list[dict[str, str]]] = defaultdict(list)
-    for row in shift_rows:
-        by_name[row["compound"]].append(row)
-    return dict(by_name)
+    return by_compound(shift_rows)
 
 
 def test_shift_table_size(shift_compounds: dict[str, list[dict[str, str]]]) -> None:
@@ -163,12 +145,12 @@ def test_shift_smiles_and_maps(shift_compounds: dict[str, list[dict[str, str]]])
     for name, rows in shift_compounds.items():
         smiles = {r["smiles"] for r in rows}
         assert len(smiles) == 1, f"{name}: one SMILES per compound"
-        mol = _mol(smiles.pop())
+        mol = parse_smiles(smiles.pop())
         assert Descriptors.NumRadicalElectrons(mol) == 0, f"{name}: bracket H count wrong"
         mapped = {a.GetAtomMapNum(): a for a in mol.GetAtoms() if a.GetAtomMapNum()}
         uses = Counter(int(r["map"]) for r in rows)
         assert set(uses) == set(mapped), f"{name}: map numbers in rows vs SMILES"
-        ranks = _symmetry_ranks(mol)
+        ranks = symmetry_ranks(mol)
         classes = Counter(ranks[a.GetIdx()] for a in mapped.values())
         assert max(classes.values()) == 1, f"{name}: two maps on symmetry-equivalent atoms"
         for number, atom in mapped.items():
@@ -219,7 +201,7 @@ def test_unknowns_keys(cases: list[dict[str, Any]]) -> None:
 
 
 def test_unknowns_structures_unique(cases: list[dict[str, Any]]) -> None:
-    canon = Counter(Chem.MolToSmiles(_mol(c["smiles"])) for c in cases)
+    canon = Counter(Chem.MolToSmiles(parse_smiles(c["smiles"])) for c in cases)
     assert max(canon.values()) == 1
 
 
@@ -253,7 +235,7 @@ def _c13_lines(text: str) -> list[C13Line]:
 
 def _carbon_classes(mol: Chem.Mol) -> list[tuple[int, int]]:
     """(attached H, size) per topological symmetry class of the carbons."""
-    ranks = _symmetry_ranks(mol)
+    ranks = symmetry_ranks(mol)
     sizes: Counter[tuple[int, int]] = Counter()
     for atom in mol.GetAtoms():
         if atom.GetSymbol() == "C":
@@ -301,7 +283,7 @@ def _check_c13(name: str, text: str, mol: Chem.Mol) -> list[C13Line]:
 def _check_case(case: dict[str, Any]) -> Chem.Mol:
     """Checks shared by both unknowns files: structure, formula, 1H text, 13C text."""
     name = case["name"]
-    mol = _mol(case["smiles"])
+    mol = parse_smiles(case["smiles"])
     assert Descriptors.NumRadicalElectrons(mol) == 0, f"{name}: bracket H count wrong"
     assert rdMolDescriptors.CalcMolFormula(mol) == case["formula"], name
     n_h = sum(a.GetTotalNumHs() for a in mol.GetAtoms())
@@ -346,7 +328,7 @@ def large_cases() -> list[dict[str, Any]]:
 
 
 def _n_carbons(case: dict[str, Any]) -> int:
-    return sum(1 for a in _mol(case["smiles"]).GetAtoms() if a.GetSymbol() == "C")
+    return sum(1 for a in parse_smiles(case["smiles"]).GetAtoms() if a.GetSymbol() == "C")
 
 
 def test_large_size(large_cases: list[dict[str, Any]]) -> None:
@@ -373,7 +355,7 @@ def test_large_keys(large_cases: list[dict[str, Any]], cases: list[dict[str, Any
 
 
 def test_large_structures_new(large_cases: list[dict[str, Any]], cases: list[dict[str, Any]]) -> None:
-    canon = Counter(Chem.MolToSmiles(_mol(c["smiles"])) for c in large_cases + cases)
+    canon = Counter(Chem.MolToSmiles(parse_smiles(c["smiles"])) for c in large_cases + cases)
     assert max(canon.values()) == 1, "a structure appears twice (or is already in unknowns.toml)"
 
 
@@ -410,12 +392,12 @@ C13_BAD = [
 @pytest.mark.parametrize(("label", "text"), C13_BAD)
 def test_c13_checks_refuse(label: str, text: str) -> None:
     with pytest.raises(AssertionError):
-        _check_c13(label, text, _mol("Cc1ccccc1"))
+        _check_c13(label, text, parse_smiles("Cc1ccccc1"))
 
 
 def test_c13_checks_accept_toluene() -> None:
     text = "137.9 (C), 129.1 (2C, CH), 128.3 (2C, CH), 125.4 (CH), 21.5 (CH3)"
-    assert len(_check_c13("toluene", text, _mol("Cc1ccccc1"))) == 5
+    assert len(_check_c13("toluene", text, parse_smiles("Cc1ccccc1"))) == 5
 
 
 # Worked check values for the peak reader itself (common practice notation).

@@ -10,8 +10,7 @@ Only rdkit and the standard library are used.
 
 from __future__ import annotations
 
-import csv
-from collections import Counter, defaultdict
+from collections import Counter
 from pathlib import Path
 from typing import NamedTuple
 
@@ -19,12 +18,13 @@ import pytest
 from rdkit import Chem, RDLogger
 from rdkit.Chem import Descriptors
 
+from shift_tables import by_compound, parse_smiles, read_rows, symmetry_ranks
+
 RDLogger.DisableLog("rdApp.*")
 
 __all__: list[str] = []
 
 SHIFTS = Path(__file__).parent / "benchmarks" / "data" / "shifts_13c.csv"
-COLUMNS = ["compound", "smiles", "map", "shift", "class", "solvent", "source"]
 
 
 class Span(NamedTuple):
@@ -59,33 +59,16 @@ MIN_COMPOUNDS = 90
 MIN_ROWS = 330
 
 
-def _mol(smiles: str) -> Chem.Mol:
-    mol = Chem.MolFromSmiles(smiles)
-    assert mol is not None, f"RDKit cannot parse SMILES {smiles!r}"
-    return mol
-
-
-def _symmetry_ranks(mol: Chem.Mol) -> list[int]:
-    bare = Chem.Mol(mol)
-    for atom in bare.GetAtoms():
-        atom.SetAtomMapNum(0)
-    return list(Chem.CanonicalRankAtoms(bare, breakTies=False))
 
 
 @pytest.fixture(scope="module")
 def rows() -> list[dict[str, str]]:
-    with SHIFTS.open(newline="", encoding="utf-8") as fh:
-        reader = csv.DictReader(fh)
-        assert reader.fieldnames == COLUMNS
-        return list(reader)
+    return read_rows(SHIFTS)
 
 
 @pytest.fixture(scope="module")
 def compounds(rows: list[dict[str, str]]) -> dict[str, list[dict[str, str]]]:
-    by_name: dict[str, list[dict[str, str]]] = defaultdict(list)
-    for row in rows:
-        by_name[row["compound"]].append(row)
-    return dict(by_name)
+    return by_compound(rows)
 
 
 def test_size(rows: list[dict[str, str]], compounds: dict[str, list[dict[str, str]]]) -> None:
@@ -110,7 +93,7 @@ def test_smiles_and_maps(compounds: dict[str, list[dict[str, str]]]) -> None:
     for name, rs in compounds.items():
         smiles = {r["smiles"] for r in rs}
         assert len(smiles) == 1, f"{name}: one SMILES per compound"
-        mol = _mol(smiles.pop())
+        mol = parse_smiles(smiles.pop())
         assert Descriptors.NumRadicalElectrons(mol) == 0, f"{name}: bracket H count wrong"
         mapped = {a.GetAtomMapNum(): a for a in mol.GetAtoms() if a.GetAtomMapNum()}
         uses = Counter(int(r["map"]) for r in rs)
@@ -124,7 +107,7 @@ def test_smiles_and_maps(compounds: dict[str, list[dict[str, str]]]) -> None:
                 values = {r["shift"] for r in rs if int(r["map"]) == number}
                 assert len(values) == 2, f"{name}: map {number} repeated with one shift"
                 assert len(atom.GetNeighbors()) and _has_equivalent_partner(mol, atom), name
-        ranks = _symmetry_ranks(mol)
+        ranks = symmetry_ranks(mol)
         classes = Counter(ranks[a.GetIdx()] for a in mapped.values())
         assert max(classes.values()) == 1, f"{name}: two maps on symmetry-equivalent atoms"
         bare = Chem.Mol(mol)
@@ -135,7 +118,7 @@ def test_smiles_and_maps(compounds: dict[str, list[dict[str, str]]]) -> None:
 
 
 def _has_equivalent_partner(mol: Chem.Mol, atom: Chem.Atom) -> bool:
-    ranks = _symmetry_ranks(mol)
+    ranks = symmetry_ranks(mol)
     return sum(1 for r in ranks if r == ranks[atom.GetIdx()]) >= 2
 
 

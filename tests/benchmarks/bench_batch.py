@@ -4,7 +4,7 @@ whether the "what to measure next" advice separates the close candidates.
 Run from the repository root::
 
     python tests/benchmarks/bench_batch.py [--workers 2] [--time-limit S] [--max-cases N]
-                                           [--carbon with|without] [--single cli|inprocess|both]
+                                           [--carbon with|without] [--single cli|inprocess|both|none]
 
 1. Single runs, one after the other: by default (``--single cli``) one
    ``elucidate solve CASE.toml`` process per case, as a user runs them, and
@@ -113,7 +113,8 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--max-cases", type=int, default=0, help="only the first N cases (0 = all)")
     ap.add_argument("--data", type=Path, default=DATA)
     ap.add_argument("--carbon", choices=("with", "without"), default="with")
-    ap.add_argument("--single", choices=("cli", "inprocess", "both"), default="cli")
+    ap.add_argument("--single", choices=("cli", "inprocess", "both", "none"), default="cli",
+                    help="reference single runs (none: only the batch and its advice)")
     args = ap.parse_args(argv)
 
     from elucidate.batch import toml_text

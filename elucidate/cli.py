@@ -17,7 +17,10 @@ from typing import Annotated, Any, Callable, Optional, TypeVar
 import typer
 
 from elucidate import CAUTION, __version__
+from elucidate._cliparams import install as _plain_values
 from elucidate.errors import InputError
+
+_plain_values()  # plain option values without importing pydantic (see _cliparams)
 
 __all__ = ["app", "main", "EXIT_INPUT", "EXIT_LIMIT", "EXIT_CASES_FAILED"]
 

@@ -29,6 +29,7 @@ import time
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from elucidate._ortools import load_cp_model
 from elucidate.advise import next_measurements
 from elucidate.constrain.evidence import Evidence, Graph, read_evidence
 from elucidate.constrain.fragments import (
@@ -220,6 +221,7 @@ def solve(
     ('CCOC(C)=O', True)
     """
     _validate(problem, top, time_limit_s, max_structures, workers)
+    load_cp_model()  # CP-SAT without pandas (start-up)
     run, ranked = _solve(problem, time_limit_s, max_structures, top, progress, workers)
     return _result(run, ranked, top)
 
@@ -256,6 +258,7 @@ def explain(
         Bad SMILES (names it), or the same errors as :func:`solve`.
     """
     _validate(problem, top, time_limit_s, max_structures, workers)
+    load_cp_model()  # CP-SAT without pandas (start-up)
     canonical = _canonical(smiles)
     return _explain(problem, canonical, top, time_limit_s, max_structures, progress, workers)
 

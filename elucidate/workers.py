@@ -51,8 +51,10 @@ ASSIGN_AHEAD = 3
 
 def _warm() -> None:
     """Pool initializer: load the libraries and the data tables once."""
+    from elucidate._ortools import load_cp_model
     from elucidate.predict import predict
 
+    load_cp_model()
     predict("CCOC(C)=O")
 
 

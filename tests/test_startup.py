@@ -79,3 +79,39 @@ def test_probe_sees_a_heavy_import():
     code, _, modules = _modules(["predict", "CCO"])
     assert code in (0, None)
     assert "rdkit" in modules
+
+
+def test_solve_loads_no_pandas():
+    # OR-Tools' cp_model imports pandas for helpers the solver never uses;
+    # elucidate._ortools imports it with a stand-in (ethyl acetate as above)
+    code, _, modules = _modules(["solve", "--formula", "C4H8O2", "--h1",
+                                 "4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)"])
+    assert code in (0, None)
+    assert "ortools.sat.python.cp_model" in modules
+    assert _loaded(modules, ("pandas",)) == []
+
+
+_STAND_IN_PROBE = """
+import sys
+from elucidate._ortools import load_cp_model
+cp = load_cp_model()
+assert "pandas" not in sys.modules
+m = cp.CpModel()
+x = m.new_int_var(0, 5, "x")
+m.add(x >= 3)
+m.minimize(x)
+solver = cp.CpSolver()
+assert solver.solve(m) == cp.OPTIMAL and solver.value(x) == 3
+assert not isinstance(3, cp.pd.Series)
+import pandas as pd  # the real package, not the stand-in
+assert hasattr(pd, "DataFrame")
+series = m.new_int_var_series("y", pd.Index(range(3)), 0, 2)  # cp_model's pandas helper still works
+assert isinstance(series, pd.Series) and isinstance(series, cp.pd.Series) and len(series) == 3
+print("ok")
+"""
+
+
+def test_cp_model_stand_in_defers_to_real_pandas():
+    done = subprocess.run([sys.executable, "-c", _STAND_IN_PROBE], cwd=ROOT, capture_output=True, text=True)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.strip() == "ok"

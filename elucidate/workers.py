@@ -22,9 +22,13 @@ machine in any case).
   few chunks ahead by the workers; the parent applies its stopping rule to
   the answers in order exactly as without workers and drops the rest.
 
-N processes work: the parent and N - 1 ``forkserver`` workers (no fork of
-a process that may run threads), each of which loads the libraries and the
-data tables once when the pool starts.  The parent never waits idle: while
+N processes work: the parent and N - 1 workers.  The workers are forked
+from the parent once it has loaded the libraries and the data tables, so
+they start at once with everything loaded; if the parent runs other
+threads (a fork of a threaded process can deadlock) they are started by
+``forkserver`` instead and load for themselves (about a second; a program
+using spawned workers needs the ``if __name__ == "__main__":`` guard, see
+:mod:`multiprocessing`).  The parent never waits idle: while
 the task it needs next is running elsewhere it takes a later task that no
 worker has started, and it does a task itself when no worker has taken it
 yet (so a pool still starting up costs nothing).
@@ -56,6 +60,19 @@ def _warm() -> None:
 
     load_cp_model()
     predict("CCOC(C)=O")
+
+
+def _start_method() -> str:
+    """``fork`` when this process runs no other thread (a fork of a threaded
+    process can deadlock), else ``forkserver`` (or ``spawn`` where neither
+    exists)."""
+    import multiprocessing as mp
+    import threading
+
+    methods = mp.get_all_start_methods()
+    if "fork" in methods and threading.active_count() == 1:
+        return "fork"
+    return "forkserver" if "forkserver" in methods else "spawn"
 
 
 def _tallies(spec: Any) -> list[dict]:
@@ -133,12 +150,20 @@ class SolvePool:
         import multiprocessing as mp
         from concurrent.futures import ProcessPoolExecutor
 
-        ctx = mp.get_context("forkserver")
-        ctx.set_forkserver_preload(["elucidate.solve", "elucidate.predict", "elucidate.score.assign"])
+        method = _start_method()
+        ctx = mp.get_context(method)
+        if method == "fork":
+            _warm()  # the workers inherit the loaded libraries and tables
+            initializer = None
+        else:
+            initializer = _warm
+            if method == "forkserver":
+                ctx.set_forkserver_preload(["elucidate.solve", "elucidate.predict", "elucidate.score.assign"])
         self.workers = workers
+        self.start_method = method
         self._planned: deque[Any] = deque()  # specs whose whole searches are under way, in order
         self._plan_stream: Any = None
-        self._pool = ProcessPoolExecutor(max_workers=workers - 1, mp_context=ctx, initializer=_warm)
+        self._pool = ProcessPoolExecutor(max_workers=workers - 1, mp_context=ctx, initializer=initializer)
         # start the processes now: they load while the parent reads the peak list
         self._pool.submit(time.sleep, 0)
 

@@ -107,3 +107,27 @@ def test_cli_bad_workers_is_one_line():
                            "--workers", "0"], capture_output=True, text=True)
     assert done.returncode == 2
     assert done.stderr.count("\n") == 1 and "--workers" in done.stderr and "Traceback" not in done.stderr
+
+
+def test_forkserver_workers_same_bytes(monkeypatch):
+    # the start method used when the parent runs other threads
+    import elucidate.workers as workers
+
+    monkeypatch.setattr(workers, "_start_method", lambda: "forkserver")
+    problem = load_problem(**EA, c13=EA_C13)
+    assert _doc(solve(problem, workers=2)) == _doc(solve(problem, workers=1))
+
+
+def test_start_method_avoids_fork_with_threads():
+    import threading
+
+    import elucidate.workers as workers
+
+    stop = threading.Event()
+    helper = threading.Thread(target=stop.wait)
+    helper.start()
+    try:
+        assert workers._start_method() != "fork"
+    finally:
+        stop.set()
+        helper.join()

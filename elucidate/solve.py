@@ -311,13 +311,11 @@ def _solve(
     if workers > 1:
         from elucidate.workers import SolvePool
 
-        run.pool = SolvePool(workers)
-    try:
-        return _search(run)
-    finally:
-        if run.pool is not None:
-            run.pool.close()
-            run.pool = None
+        with SolvePool(workers) as run.pool:  # stopped at once on an error or Ctrl-C
+            result = _search(run)
+        run.pool = None
+        return result
+    return _search(run)
 
 
 def _search(run: _Run) -> tuple[_Run, list[_Entry]]:

@@ -53,8 +53,39 @@ ASSIGN_CHUNK = 4
 ASSIGN_AHEAD = 3
 
 
+def _quiet_child(parent: int) -> None:
+    """Pool initializer: Ctrl-C is the parent's to handle (it stops the
+    workers; a worker would otherwise print a traceback of its own), and a
+    worker ends within a second of a parent that died without stopping it
+    (killed), so no orphan keeps computing."""
+    import signal
+    import threading
+
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    threading.Thread(target=_watch_parent, args=(parent,), daemon=True).start()
+
+
+def _watch_parent(pid: int) -> None:
+    import os
+
+    ppid = os.getppid()  # the parent itself, or the forkserver
+    while True:
+        time.sleep(0.5)
+        if os.getppid() != ppid:  # reparented: the parent died (perhaps not yet reaped)
+            os._exit(1)
+        try:
+            os.kill(pid, 0)
+        except (ProcessLookupError, PermissionError):  # gone (or the pid is someone else's now)
+            os._exit(1)
+
+
+def _warm_child(parent: int) -> None:
+    _quiet_child(parent)
+    _warm()
+
+
 def _warm() -> None:
-    """Pool initializer: load the libraries and the data tables once."""
+    """Load the libraries and the data tables once."""
     from elucidate._ortools import load_cp_model
     from elucidate.predict import predict
 
@@ -154,29 +185,45 @@ class SolvePool:
         ctx = mp.get_context(method)
         if method == "fork":
             _warm()  # the workers inherit the loaded libraries and tables
-            initializer = None
+            initializer = _quiet_child
         else:
-            initializer = _warm
+            initializer = _warm_child
             if method == "forkserver":
                 ctx.set_forkserver_preload(["elucidate.solve", "elucidate.predict", "elucidate.score.assign"])
         self.workers = workers
         self.start_method = method
         self._planned: deque[Any] = deque()  # specs whose whole searches are under way, in order
         self._plan_stream: Any = None
-        self._pool = ProcessPoolExecutor(max_workers=workers - 1, mp_context=ctx, initializer=initializer)
+        import os
+
+        self._pool = ProcessPoolExecutor(max_workers=workers - 1, mp_context=ctx, initializer=initializer,
+                                         initargs=(os.getpid(),))
         # start the processes now: they load while the parent reads the peak list
         self._pool.submit(time.sleep, 0)
 
     def close(self) -> None:
-        """Stop the workers (pending tasks are dropped)."""
+        """Stop the workers once their running tasks end (pending ones are dropped)."""
         self._drop_plan()
         self._pool.shutdown(wait=True, cancel_futures=True)
+
+    def abort(self) -> None:
+        """Stop the workers now (after an error or Ctrl-C in the parent)."""
+        self._drop_plan()
+        processes = list((getattr(self._pool, "_processes", None) or {}).values())
+        self._pool.shutdown(wait=False, cancel_futures=True)
+        for process in processes:
+            process.terminate()
+        for process in processes:
+            process.join(timeout=5)
 
     def __enter__(self) -> "SolvePool":
         return self
 
-    def __exit__(self, *exc: Any) -> None:
-        self.close()
+    def __exit__(self, kind: Any, *exc: Any) -> None:
+        if kind is None:
+            self.close()
+        else:
+            self.abort()
 
     # -------------------------------------------------------------- ordering
 

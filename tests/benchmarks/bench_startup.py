@@ -19,11 +19,13 @@ children.
 
 **Workers.**  The slowest unknowns of tests/benchmarks/data/unknowns.toml
 (``--only`` picks them by name; default: the three slowest of the last
-single-process benchmark run, see DEVELOPERS.md) are solved in this process
-with ``workers=1`` and ``workers=2``, alternately, ``--rounds`` times each;
-the script prints the median wall times, the speed-up, and whether the JSON
-documents are byte-identical (they must be: a difference is printed as
-FAILED and the exit code is 1).
+single-process benchmark run, see DEVELOPERS.md) are solved by ``elucidate
+solve --json`` with ``--workers 1`` and ``--workers 2``, alternately,
+``--rounds`` times each, each in a fresh process (a solve in a process that
+already solved the case would find its skeletons and predictions cached).
+The script prints the median wall times, the speed-up, the CPU time of all
+processes, and whether the JSON documents are byte-identical (they must
+be: a difference is printed as FAILED and the exit code is 1).
 
 Not collected by pytest: timings are printed, never asserted.
 """
@@ -97,45 +99,63 @@ def startup(repeat: int) -> None:
         print(f"{label:48} {med[label]:7.3f} {med[label] / base:7.2f} {med[label] / rdkit:8.2f} {min(times[label]):7.3f}")
 
 
-def _solve_json(case: dict, workers: int, time_limit: float) -> tuple[str, float]:
-    from elucidate.parse import load_problem
-    from elucidate.solve import solve
+def _cpu_children() -> float:
+    """CPU seconds of ended, reaped child processes (with their own reaped
+    children: the pool's workers)."""
+    import resource
 
-    problem = load_problem(formula=case["formula"], h1=case["h1"], solvent=case.get("solvent"))
-    t0 = time.perf_counter()
-    result = solve(problem, time_limit_s=time_limit, workers=workers)
-    dt = time.perf_counter() - t0
-    return json.dumps(result.to_json(), indent=2, ensure_ascii=False), dt
+    kids = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return kids.ru_utime + kids.ru_stime
+
+
+def _solve_cli(case_file: Path, workers: int, time_limit: float, env: dict) -> tuple[bytes, float, float]:
+    argv = [sys.executable, "-m", "elucidate", "solve", str(case_file), "--json", "--workers", str(workers),
+            "--time-limit", f"{time_limit:g}"]
+    c0, t0 = _cpu_children(), time.perf_counter()
+    done = subprocess.run(argv, cwd=ROOT, env=env, capture_output=True)
+    dt, cpu = time.perf_counter() - t0, _cpu_children() - c0
+    if done.returncode != 0:
+        raise SystemExit(f"{' '.join(argv)}: exit {done.returncode}: {done.stderr.decode()[-300:]}")
+    return done.stdout, dt, cpu
 
 
 def workers(names: list[str], rounds: int, time_limit: float) -> bool:
-    from elucidate.parse import load_problem
-    from elucidate.solve import solve
+    import tempfile
 
-    # pay imports and tables before any clock starts (ethyl acetate, unknowns.toml)
-    warm = _case(C4_CASE)
-    solve(load_problem(formula=warm["formula"], h1=warm["h1"], solvent=warm.get("solvent")))
-    print(f"--workers 2 against 1, solve without 13C, {rounds} alternating rounds, time limit {time_limit:g} s")
-    print(f"{'case':24} {'formula':10} {'1 worker s':>10} {'2 workers s':>11} {'speed-up':>8}  same bytes")
+    env = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
+    subprocess.run([sys.executable, "-m", "compileall", "-q", str(ROOT / "elucidate")], check=True, env=env)
+    print(f"elucidate solve CASE --json --workers 1 / 2, without 13C, {rounds} alternating rounds, fresh process each,")
+    print(f"time limit {time_limit:g} s.  wall: median s; cpu: CPU s of all processes of the run; ideal: 2 x cpu(1) /")
+    print("cpu(2), the speed-up if both processes had a free core throughout (the machine is shared: wall ratios")
+    print("vary with its load, shown as the 1-minute load average)")
+    print(f"{'case':20} {'formula':8} {'wall 1':>7} {'wall 2':>7} {'speed-up':>8} {'cpu 1':>6} {'cpu 2':>6} "
+          f"{'ideal':>6} {'load':>5}  same bytes")
     ok = True
-    for name in names:
-        case = _case(name)
-        one: list[float] = []
-        two: list[float] = []
-        docs: set[str] = set()
-        for _ in range(rounds):
-            doc, dt = _solve_json(case, 1, time_limit)
-            docs.add(doc)
-            one.append(dt)
-            doc, dt = _solve_json(case, 2, time_limit)
-            docs.add(doc)
-            two.append(dt)
-        same = len(docs) == 1
-        complete = all(json.loads(d).get("complete") for d in docs)
-        ok = ok and same
-        a, b = statistics.median(one), statistics.median(two)
-        print(f"{name:24} {case['formula']:10} {a:10.2f} {b:11.2f} {a / b:7.2f}x  "
-              f"{'yes' if same else 'FAILED: output differs'}{'' if complete else ' (incomplete: hit the time limit)'}")
+    with tempfile.TemporaryDirectory() as tmp:
+        for name in names:
+            case = _case(name)
+            case_file = Path(tmp) / "case.toml"
+            case_file.write_text(
+                f"formula = {json.dumps(case['formula'])}\nh1 = {json.dumps(case['h1'])}\n"
+                f"solvent = {json.dumps(case.get('solvent', 'CDCl3'))}\n", encoding="utf-8")
+            one: list[tuple[float, float]] = []
+            two: list[tuple[float, float]] = []
+            docs: set[bytes] = set()
+            loads = []
+            for _ in range(rounds):
+                for n, into in ((1, one), (2, two)):
+                    doc, dt, cpu = _solve_cli(case_file, n, time_limit, env)
+                    docs.add(doc)
+                    into.append((dt, cpu))
+                    loads.append(os.getloadavg()[0])
+            same = len(docs) == 1
+            complete = all(json.loads(d).get("complete") for d in docs)
+            ok = ok and same
+            a, b = statistics.median(t for t, _ in one), statistics.median(t for t, _ in two)
+            ca, cb = statistics.median(c for _, c in one), statistics.median(c for _, c in two)
+            print(f"{name:20} {case['formula']:8} {a:7.2f} {b:7.2f} {a / b:7.2f}x {ca:6.2f} {cb:6.2f} "
+                  f"{2 * ca / cb:5.2f}x {statistics.median(loads):5.1f}  "
+                  f"{'yes' if same else 'FAILED: output differs'}{'' if complete else ' (incomplete: hit the time limit)'}")
     return ok
 
 

@@ -295,11 +295,11 @@ class SolvePool:
 
     def _planned_result(self, spec: Any) -> Any:
         """The whole-search result of a planned spec (None: not planned)."""
-        while self._planned and self._planned[0] is not spec:
+        if not any(planned is spec for planned in self._planned):
+            return None
+        while self._planned[0] is not spec:
             self._planned.popleft()
             next(self._plan_stream)  # a spec the solver did not ask for
-        if not self._planned:
-            return None
         self._planned.popleft()
         return next(self._plan_stream)
 

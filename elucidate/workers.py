@@ -29,7 +29,7 @@ threads (a fork of a threaded process can deadlock) they are started by
 ``forkserver`` instead and load for themselves (about a second; a program
 using spawned workers needs the ``if __name__ == "__main__":`` guard, see
 :mod:`multiprocessing`).  The parent never waits idle: while
-the task it needs next is running elsewhere it takes a later task that no
+the task it needs next is running elsewhere it takes the last task that no
 worker has started, and it does a task itself when no worker has taken it
 yet (so a pool still starting up costs nothing).
 """
@@ -255,7 +255,11 @@ class SolvePool:
                     if first.future.cancel():
                         run_here(first)
                     while not first.local and not first.future.done():
-                        later = next((t for t in list(queue)[1:] if not t.local and t.future.cancel()), None)
+                        # from the far end: the workers go on taking tasks in order, so
+                        # neighbouring searches (which often share a skeleton list) tend
+                        # to stay in one process
+                        later = next((t for t in reversed(list(queue)[1:]) if not t.local and t.future.cancel()),
+                                     None)
                         if later is None:
                             first.future.result()  # wait: every task is started
                             break

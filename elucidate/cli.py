@@ -17,7 +17,10 @@ from typing import Annotated, Any, Callable, Optional, TypeVar
 import typer
 
 from elucidate import CAUTION, __version__
+from elucidate._cliparams import install as _plain_values
 from elucidate.errors import InputError
+
+_plain_values()  # plain option values without importing pydantic (see _cliparams)
 
 __all__ = ["app", "main", "EXIT_INPUT", "EXIT_LIMIT", "EXIT_CASES_FAILED"]
 
@@ -398,6 +401,15 @@ MaxStructuresOpt = Annotated[
     Optional[int],
     typer.Option("--max-structures", help="Stop after generating this many structures.", min=1),
 ]
+WorkersOpt = Annotated[
+    int,
+    typer.Option(
+        "--workers",
+        help="Local processes that build, predict and score the structures of this unknown "
+        "(same result for any number; worth it for searches of more than a few seconds).",
+        min=1,
+    ),
+]
 
 
 ReportOpt = Annotated[
@@ -493,6 +505,7 @@ def solve_command(
     top: TopOpt = 10,
     time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
+    workers: WorkersOpt = 1,
     report: ReportOpt = None,
     sdf: SdfOpt = None,
     json_out: JsonOpt = False,
@@ -512,7 +525,7 @@ def solve_command(
     with stderr_progress() as progress:
         result = solve(
             problem, top=top, time_limit_s=_time_limit(time_limit), max_structures=max_structures,
-            progress=progress,
+            progress=progress, workers=workers,
         )
     if not result.complete:
         warn(f"incomplete search ({result.stopped_by or 'hypotheses capped'}): best so far shown")
@@ -545,6 +558,7 @@ def explain_command(
     noesy: NoesyOpt = None,
     time_limit: TimeLimitOpt = DEFAULT_TIME_LIMIT_S,
     max_structures: MaxStructuresOpt = None,
+    workers: WorkersOpt = 1,
     report: ReportOpt = None,
     sdf: SdfOpt = None,
     json_out: JsonOpt = False,
@@ -566,7 +580,7 @@ def explain_command(
     with stderr_progress() as progress:
         explanation = explain(
             problem, smiles, time_limit_s=_time_limit(time_limit), max_structures=max_structures,
-            progress=progress,
+            progress=progress, workers=workers,
         )
     _deliver(explanation, report, sdf, json_out, write_explain_html, write_explain_sdf, render_explain)
 

@@ -29,6 +29,7 @@ import time
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
+from elucidate._ortools import load_cp_model
 from elucidate.advise import next_measurements
 from elucidate.constrain.evidence import Evidence, Graph, read_evidence
 from elucidate.constrain.fragments import (
@@ -166,6 +167,7 @@ class _Run:
     evidence: tuple[Evidence, ...] = ()
     tally: dict[str, int] = field(default_factory=dict)  # evidence key -> structures turned down
     not_searched: list[str] = field(default_factory=list)
+    pool: Any = None  # elucidate.workers.SolvePool when workers > 1
 
 
 # ------------------------------------------------------------------ public
@@ -178,6 +180,7 @@ def solve(
     time_limit_s: float | None = None,
     max_structures: int | None = None,
     progress: Callable[[str, int, int | None], None] | None = None,
+    workers: int = 1,
 ) -> SolveResult:
     """Rank every structure allowed by the peak list's hard constraints.
 
@@ -195,6 +198,9 @@ def solve(
     progress : callable, optional
         ``progress(phase, done, total)`` is called as structures are built
         and scored (see :mod:`elucidate.report.progress`); ``None``: silent.
+    workers : int
+        Local processes for building, predicting and scoring structures
+        (:mod:`elucidate.workers`); the result is the same for any number.
 
     Returns
     -------
@@ -203,7 +209,7 @@ def solve(
     Raises
     ------
     InputError
-        No 1H signals, or a non-positive ``top`` / limit.
+        No 1H signals, or a non-positive ``top`` / limit / ``workers``.
 
     Examples
     --------
@@ -214,8 +220,9 @@ def solve(
     >>> r.candidates[0].smiles, r.complete
     ('CCOC(C)=O', True)
     """
-    _validate(problem, top, time_limit_s, max_structures)
-    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress)
+    _validate(problem, top, time_limit_s, max_structures, workers)
+    load_cp_model()  # CP-SAT without pandas (start-up)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress, workers)
     return _result(run, ranked, top)
 
 
@@ -227,6 +234,7 @@ def explain(
     time_limit_s: float | None = None,
     max_structures: int | None = None,
     progress: Callable[[str, int, int | None], None] | None = None,
+    workers: int = 1,
 ) -> Explanation:
     """Why one structure is (or is not) a good answer, and where it ranks.
 
@@ -236,7 +244,7 @@ def explain(
         The unknown.
     smiles : str
         The structure the chemist has in mind.
-    top, time_limit_s, max_structures, progress
+    top, time_limit_s, max_structures, progress, workers
         As for :func:`solve` (the ranking needs the full search).
 
     Returns
@@ -249,15 +257,18 @@ def explain(
     InputError
         Bad SMILES (names it), or the same errors as :func:`solve`.
     """
-    _validate(problem, top, time_limit_s, max_structures)
+    _validate(problem, top, time_limit_s, max_structures, workers)
+    load_cp_model()  # CP-SAT without pandas (start-up)
     canonical = _canonical(smiles)
-    return _explain(problem, canonical, top, time_limit_s, max_structures, progress)
+    return _explain(problem, canonical, top, time_limit_s, max_structures, progress, workers)
 
 
 # ------------------------------------------------------------- validation
 
 
-def _validate(problem: Problem, top: int, time_limit_s: float | None, max_structures: int | None) -> None:
+def _validate(
+    problem: Problem, top: int, time_limit_s: float | None, max_structures: int | None, workers: int = 1
+) -> None:
     if not problem.h1:
         raise InputError("no 1H signals: solve needs a 1H peak list (--h1 or [h1] in the case file)")
     if top < 1:
@@ -266,6 +277,8 @@ def _validate(problem: Problem, top: int, time_limit_s: float | None, max_struct
         raise InputError(f"--time-limit {time_limit_s:g}: must be positive")
     if max_structures is not None and max_structures < 1:
         raise InputError(f"--max-structures {max_structures}: must be at least 1")
+    if workers < 1:
+        raise InputError(f"--workers {workers}: must be at least 1")
 
 
 def _canonical(smiles: str) -> str:
@@ -290,10 +303,23 @@ def _solve(
     max_structures: int | None,
     top: int = 10,
     progress: Any = None,
+    workers: int = 1,
 ) -> tuple[_Run, list[_Entry]]:
     start = time.monotonic()
     run = _Run(problem, None if time_limit_s is None else start + time_limit_s, max_structures, top)
     run.progress = progress
+    if workers > 1:
+        from elucidate.workers import SolvePool
+
+        with SolvePool(workers) as run.pool:  # stopped at once on an error or Ctrl-C
+            result = _search(run)
+        run.pool = None
+        return result
+    return _search(run)
+
+
+def _search(run: _Run) -> tuple[_Run, list[_Entry]]:
+    problem = run.problem
     run.warnings.extend(problem.warnings)
     matches = match_fragments(problem)
     hard = [m for m in matches if m.rule.strength == "hard"]
@@ -316,6 +342,8 @@ def _solve(
         run.levels_run.append(li)
         specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
+        if run.pool is not None and not run.stopped_by:
+            _plan(run, [s for s, _ in specs if _spec_key(s) not in prev_specs], level)
         for k, (spec, label) in enumerate(specs):
             if run.stopped_by:
                 run.not_searched.append(f"{label} (level '{level.name}')")
@@ -472,21 +500,36 @@ def _consume(run: _Run, spec: Any, level_index: int, level: Level) -> None:
     stats = Stats()
     run.specs += 1
     count_here = 0
+    limits = Limits(max_structures=n, time_limit_s=t)
+    if run.pool is not None:
+        stream = run.pool.structures(spec, limits, stats, run.problem, run.weights)
+    else:
+        stream = ((smi, None) for smi in generate(spec, limits=limits, stats=stats))
     try:
-        for smi in generate(spec, limits=Limits(max_structures=n, time_limit_s=t), stats=stats):
+        for smi, prepared in stream:
             count_here += 1
             run.generated += 1
             if run.progress is not None:
                 run.progress("building structures", run.generated, None)
             if smi in run.entries or smi in run.rejected:
                 continue
-            _add(run, smi, level_index)
+            _add(run, smi, level_index, prepared)
     except LimitReached:
         run.stopped_by = _which_limit(run, level, count_here, n)
     stopped = getattr(stats, "stopped_by", None)
     if stopped and not run.stopped_by:
         run.stopped_by = _which_limit(run, level, count_here, n)
     run.visited += int(getattr(stats, "visited", 0) or 0)
+
+
+def _plan(run: _Run, specs: list, level: Level) -> None:
+    """Let the worker pool start a level's searches ahead of :func:`_consume`."""
+    from elucidate.generate import Limits
+
+    t, n = _remaining(run)
+    if level.margin is None and run.max_structures is None:
+        n = FORMULA_ONLY_CAP
+    run.pool.plan(specs, Limits(max_structures=n, time_limit_s=t), run.problem, run.weights)
 
 
 def _which_limit(run: _Run, level: Level, count: int, n: int | None) -> str:
@@ -497,11 +540,17 @@ def _which_limit(run: _Run, level: Level, count: int, n: int | None) -> str:
     return "time limit"
 
 
-def _add(run: _Run, smi: str, level_index: int) -> None:
+def _prepare(problem: Problem, weights: Weights, smi: str) -> tuple[Prediction, float, str | None]:
+    """A new structure's prediction, cheap bound and rejection reason (None: kept)."""
     from elucidate.predict import predict
 
-    prediction = predict(smi, solvent=run.problem.solvent, field_mhz=run.problem.field_mhz)
-    bound, reason = quick_bound(run.problem, prediction, run.weights)
+    prediction = predict(smi, solvent=problem.solvent, field_mhz=problem.field_mhz)
+    bound, reason = quick_bound(problem, prediction, weights)
+    return prediction, bound, reason
+
+
+def _add(run: _Run, smi: str, level_index: int, prepared: tuple | None = None) -> None:
+    prediction, bound, reason = prepared or _prepare(run.problem, run.weights, smi)
     if reason is not None:
         run.rejected[smi] = (_category(reason), reason)
         return
@@ -533,6 +582,16 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
     if not pending:
         return
     done = sorted((e.fit.cost + e.soft_cost for e in run.entries.values() if e.fit is not None and e.fit.feasible))
+    ahead = None if run.pool is None else run.pool.fits(run.problem, run.weights, [e.prediction for e in pending])
+    try:
+        _score_in_order(run, pending, done, soft, ahead)
+    finally:
+        if ahead is not None:
+            ahead.close()
+
+
+def _score_in_order(run: _Run, pending: list[_Entry], done: list[float], soft: list[FragmentMatch],
+                    ahead: Any) -> None:
     for k, entry in enumerate(pending):
         kth = done[run.top - 1] if len(done) >= run.top else math.inf
         if run.full_models >= FULL_MODEL_MIN and entry.bound >= kth:
@@ -542,7 +601,7 @@ def _score_pool(run: _Run, matches: list[FragmentMatch], demoted_hard: list[Frag
             break  # out of time: the rest keep their cheap bound
         if run.progress is not None:
             run.progress("scoring", k + 1, len(pending))
-        fit = assign(run.problem, entry.prediction, weights=run.weights)
+        fit = next(ahead) if ahead is not None else assign(run.problem, entry.prediction, weights=run.weights)
         run.full_models += 1
         if not fit.feasible:
             run.rejected[entry.smiles] = (_category(fit.reasons[0]), fit.reasons[0])
@@ -810,7 +869,8 @@ def _formula_of(smiles: str) -> str:
 
 
 def _explain(
-    problem: Problem, smiles: str, top: int, time_limit_s: float | None, max_structures: int | None, progress: Any = None
+    problem: Problem, smiles: str, top: int, time_limit_s: float | None, max_structures: int | None,
+    progress: Any = None, workers: int = 1,
 ) -> Explanation:
     from elucidate.predict import predict
 
@@ -831,7 +891,7 @@ def _explain(
         fit = assign(problem, prediction)
         if not fit.feasible:
             reasons = list(fit.reasons) + reasons
-    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress)
+    run, ranked = _solve(problem, time_limit_s, max_structures, top, progress, workers)
     rank = next((i + 1 for i, e in enumerate(ranked) if e.smiles == smiles), None)
     total = len(ranked)
     if fit is None or not fit.feasible:

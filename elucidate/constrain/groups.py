@@ -60,6 +60,10 @@ _SMALL_J = 3.2
 
 _SOLVENTS_SHOWING_XH_COUPLING = ("dmso", "acetone")
 
+# Ring H (aromatic, heteroaromatic) lie at or above this shift (ppm; the
+# window of the ring fragment rules, common practice).
+_RING_H_LOW = 6.3
+
 
 @dataclass(frozen=True)
 class Group:
@@ -168,6 +172,7 @@ def neighbour_counts(
     *,
     has_xh: bool = False,
     has_nh: bool = False,
+    groups: int = 1,
 ) -> frozenset[int] | None:
     """Allowed numbers of H on carbons bonded to the atom(s) of this signal.
 
@@ -179,6 +184,16 @@ def neighbour_counts(
     slow exchange) and OH in DMSO-d6 or acetone-d6, which the generator's
     count (H on carbon only) leaves out.
 
+    When the signal holds ``groups`` > 1 groups of one kind, H of the same
+    signal do not split each other (isochronous H show no coupling among
+    themselves: the four H of 1,2-dichloroethane are one singlet), so up to
+    ``groups - 1`` neighbours from the signal itself may add their H
+    uncounted.  Two or more equivalent ring H in one signal (shift at least
+    6.3 ppm) belong to an AA'BB'-type system whose second-order lines can
+    look like more splittings than there are neighbours (the "dd, J = 5.7,
+    3.3 Hz" of a phthalate): the count is then only an upper bound (common
+    practice).
+
     Examples
     --------
     >>> from elucidate.model import H1Signal, Formula
@@ -187,6 +202,8 @@ def neighbour_counts(
     [3]
     >>> sorted(neighbour_counts(H1Signal(2.33, 2.33, 2.33, "dq", (7.5, 1.5), 2, 2), f))
     [1, 2, 3, 4]
+    >>> sorted(neighbour_counts(H1Signal(3.73, 3.73, 3.73, "s", (), 4, 4), f, groups=2))
+    [0, 2]
     """
     pattern = signal.pattern
     if pattern is None or signal.broad:
@@ -213,6 +230,16 @@ def neighbour_counts(
         # J ~5 Hz); OH does so in DMSO-d6/acetone-d6 (common practice). The
         # generator counts only H on carbon, so allow up to two fewer.
         allowed |= {v - k for v in allowed for k in (1, 2) if v - k >= 0}
+    if groups > 1:
+        per = max(1, round(signal.h_count) // groups)
+        if signal.shift >= _RING_H_LOW and per == 1 and pattern != (1,):
+            allowed = set(range(0, max(allowed) + 1))
+        # a carbon with `per` H has at most 4 - per heavy neighbours, and v H
+        # on the others need at least ceil(v / 3) of them
+        allowed |= {
+            v + j * per for v in allowed for j in range(1, groups)
+            if j + -(-v // 3) <= 4 - per
+        }
     return frozenset(allowed)
 
 
@@ -434,7 +461,10 @@ def _proton_groups(
     seen: dict[tuple, Hypothesis] = {}
     for cost, values in sorted(solutions, key=lambda cv: (cv[0], sorted((str(k), v) for k, v in cv[1].items()))):
         hyp = _build(problem, formula, hs, values, cost)
-        k = hyp.key()
+        # readings that give the generator the same atoms may still differ in
+        # which signal holds which group, and fragment rules carve their atoms
+        # out of the matched signals' groups: keep both
+        k = (hyp.key(), tuple(sorted((g.spec_key(), g.signals) for g in hyp.groups)))
         if k not in seen or seen[k].cost > hyp.cost:
             seen[k] = hyp
     hyps = sorted(seen.values(), key=lambda h: (h.cost, repr(h.key())))
@@ -453,7 +483,10 @@ def _build(problem: Problem, formula: Formula, hs: list[int], values: dict, cost
         kinds = [(k, values.get((i, k), 0)) for k, _, _ in GROUP_KINDS]
         present = [(k, v) for k, v in kinds if v]
         pure = len(present) == 1 and present[0][0] in ("CH3", "CH2", "CH")
-        nb = neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh) if pure else None
+        nb = (
+            neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh, groups=present[0][1])
+            if pure else None
+        )
         text = []
         for kind, count in present:
             text.append(f"{count} {kind}" if count > 1 else kind)

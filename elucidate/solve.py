@@ -59,6 +59,9 @@ NOT_SEARCHED_SHOWN = 8
 #: Narrow and wide plausibility margins for the H-distribution hypotheses.
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
+#: A wider level runs on a poor fit only if the time left is at least this
+#: many times what the last level took (it searches a superset of it).
+RELAX_TIME_FACTOR = 2.0
 
 
 @dataclass(frozen=True)
@@ -301,19 +304,28 @@ def _solve(
     hyp_cache: dict[tuple, HypothesisSet] = {}
     prev_specs: set = set()
     prev_level: Level | None = None
+    level_seconds = 0.0
     for li, level in enumerate(LEVELS):
         if prev_level is not None:
             sentence = _relaxation(prev_level, level, run.evidence)
             if sentence is None:
                 continue
-            if _has_consistent(run) or run.stopped_by:
-                if run.stopped_by:
-                    run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
-                    continue
+            if run.stopped_by:
+                run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
+                continue
+            go, note = _should_relax(run, level_seconds)
+            if not go:
+                if note:
+                    run.not_searched.append(f"relaxation level '{level.name}' ({sentence}): {note}")
+                    run.warnings.append(
+                        f"no candidate is consistent with every signal, but relaxing the hard rules further "
+                        f"(level '{level.name}') was not tried: {note}"
+                    )
                 break
             run.relaxed.append(sentence)
         prev_level = level
         run.levels_run.append(li)
+        level_start = time.monotonic()
         specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
         for k, (spec, label) in enumerate(specs):
@@ -328,12 +340,38 @@ def _solve(
             if run.stopped_by:
                 run.not_searched.append(f"{label} (level '{level.name}', stopped part-way)")
         _score_pool(run, matches, hard if not level.hard_fragments else [])
+        level_seconds = time.monotonic() - level_start
     ranked = _ranked(run)
     return run, ranked
 
 
 def _has_consistent(run: _Run) -> bool:
     return any(e.fit is not None and e.fit.verdict == "consistent" for e in run.entries.values())
+
+
+def _should_relax(run: _Run, level_seconds: float) -> tuple[bool, str]:
+    """Whether the next, wider level runs, and why not when it does not.
+
+    A level that leaves no candidate at all (the hard rules contradict the
+    data: no reading fits, or every structure built was turned down) is
+    always relaxed.  When candidates exist but none fits consistently, the
+    next level runs only if the time left can cover it: a wider level
+    searches a superset of the last one, so it takes at least as long
+    (``RELAX_TIME_FACTOR`` times the last level's time is asked for).  A
+    consistent candidate ends the relaxation.
+    """
+    if not run.entries:
+        return True, ""
+    if _has_consistent(run):
+        return False, ""
+    if run.deadline is None:
+        return True, ""
+    left = run.deadline - time.monotonic()
+    need = RELAX_TIME_FACTOR * level_seconds
+    if left >= need:
+        return True, ""
+    # no figures in the sentence: output stays the same bytes for the same input
+    return False, "the time left is less than the wider search would take (it repeats the last level and more)"
 
 
 def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run) -> tuple[list, bool]:

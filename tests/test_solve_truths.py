@@ -70,3 +70,29 @@ def test_strict_rejections_names_the_broken_rule():
     reasons = strict_rejections(p, "CC(C)C(=O)O")
     assert reasons and all(isinstance(r, str) and r for r in reasons)
     assert strict_rejections(p, "CCO") == ("its formula is C2H6O, not C4H8O2",)
+
+
+@pytest.mark.parametrize("with_c13", [True, False], ids=["with 13C", "1H only"])
+def test_scoring_never_rejects_a_truth(with_c13):
+    # the assignment model turns a structure down only when its H cannot
+    # meet the integrals (explain reports that as a rejection); the true
+    # structure of a real spectrum must always be assignable (source of each
+    # case: its `source` field in the data file)
+    from rdkit import Chem
+
+    from elucidate.predict import predict
+    from elucidate.score.assign import assign, quick_bound
+
+    rejected = []
+    for label, case in CASES:
+        problem = _problem(case, with_c13)
+        mol = Chem.MolFromSmiles(case["smiles"])
+        Chem.RemoveStereochemistry(mol)
+        prediction = predict(Chem.MolToSmiles(mol), solvent=problem.solvent, field_mhz=problem.field_mhz)
+        _, why = quick_bound(problem, prediction)
+        if why is None:
+            fit = assign(problem, prediction)
+            why = None if fit.feasible else fit.reasons[0]
+        if why is not None:
+            rejected.append(f"{label}: {why}")
+    assert rejected == []

@@ -60,6 +60,10 @@ _SMALL_J = 3.2
 
 _SOLVENTS_SHOWING_XH_COUPLING = ("dmso", "acetone")
 
+# A J this large (Hz) on an sp3 H is geminal: the H is one of a CH2 pair
+# (2J(H,H) 12-18 Hz; vicinal sp3 couplings stay below about 12 Hz: common practice).
+_GEMINAL_J = 12.0
+
 # Ring H (aromatic, heteroaromatic) lie at or above this shift (ppm; the
 # window of the ring fragment rules, common practice).
 _RING_H_LOW = 6.3
@@ -297,13 +301,22 @@ def _signal_h(problem: Problem) -> tuple[list[int], list[str]]:
     return hs, warnings
 
 
+def _overlapped(s: H1Signal) -> bool:
+    """A multiplet or range of several H below 4.4 ppm: overlapped aliphatic
+    H, whose integral is shared by different groups (common practice)."""
+    return s.pattern is None and not s.broad and s.shift < 4.4
+
+
 def _kind_cost(kind: str, s: H1Signal, n_groups: int) -> int:
     d = s.shift
     sharp_multiplet = s.pattern is not None and s.pattern != (1,) and not s.broad
     cost = 0
     if kind in ("OH", "NH", "NH2", "SH"):
         if sharp_multiplet:
-            cost += 4
+            # an OH/NH coupled to its CH (d or t, 3J 3-6 Hz) in a dry sample
+            # is seen; larger or several couplings are C-H (common practice)
+            one_small_j = len(s.pattern or ()) == 1 and all(j <= 6.0 for j in s.couplings)
+            cost += 2 if one_small_j and s.couplings else 4
         elif not s.broad:
             cost += 1
     else:
@@ -313,12 +326,21 @@ def _kind_cost(kind: str, s: H1Signal, n_groups: int) -> int:
             cost += 4
         if kind == "CH3" and d > 4.1:
             cost += 2
+        # a CH3 gives a sharp s/d/t; one reported as a multiplet is usually
+        # overlapped by other H (common practice)
+        if kind == "CH3" and _overlapped(s):
+            cost += 1 if n_groups == 1 else 2
         # several equivalent CH2 or CH in one aliphatic signal: possible
         # (symmetry) but less usual than CH3 groups or one CH2
         if kind in ("CH", "CH2") and d < 4.4 and n_groups > 1:
             cost += 2
         if kind == "CH2/2":
-            cost += 1 if 4.4 <= d <= 6.6 else 2
+            # a ring CH2 often shows its two H apart in overlapped multiplets;
+            # a 1H sp3 signal with a J of 12 Hz or more shows its geminal
+            # partner (2J(H,H) 12-18 Hz, common practice)
+            geminal = d < 4.4 and round(s.h_count) == 1 and any(j >= _GEMINAL_J for j in s.couplings)
+            if not geminal:
+                cost += 1 if 4.4 <= d <= 6.6 or _overlapped(s) else 2
     return cost
 
 
@@ -368,7 +390,8 @@ def _proton_groups(
         m.add(n_types <= max_types)
         extra = m.new_int_var(0, max_types, f"mix{i}")
         m.add(extra >= n_types - 1)
-        cost_terms.append(3 * extra)
+        # an overlapped aliphatic multiplet of several H is often a mixture
+        cost_terms.append((2 if _overlapped(s) and n >= 2 else 3) * extra)
         for k, _ in kinds_here:
             # cost per group kind is a function of the count (n_groups) — use the
             # one-group and several-group costs

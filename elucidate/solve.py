@@ -17,9 +17,11 @@ How the pieces fit (see docs/solve-dev.md):
    spot with a reason), and the best few hundred get the full CP-SAT
    assignment.  Structures whose bound cannot beat the current top ``top``
    are not worth a full model, which keeps the ranking exact.
-4. If no candidate fits well, the hard constraints are relaxed step by step
+4. If a level leaves no candidate, or none fits well and the time left can
+   cover a wider search, the hard constraints are relaxed step by step
    (hard fragments → more hypotheses → multiplicity rules → formula only);
-   each step taken is listed in ``relaxed``.
+   each step taken is listed in ``relaxed``, a step skipped for lack of time
+   in ``not_searched`` and the warnings.
 """
 
 from __future__ import annotations

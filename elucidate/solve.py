@@ -306,8 +306,10 @@ def _solve(
     hyp_cache: dict[tuple, HypothesisSet] = {}
     prev_specs: set = set()
     prev_level: Level | None = None
-    level_seconds = 0.0
+    searched_s = 0.0  # time spent in the levels run so far
+    searched = 0  # generator specs run so far
     for li, level in enumerate(LEVELS):
+        planned = None
         if prev_level is not None:
             sentence = _relaxation(prev_level, level, run.evidence)
             if sentence is None:
@@ -315,12 +317,20 @@ def _solve(
             if run.stopped_by:
                 run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
                 continue
-            go, note = _should_relax(run, level_seconds)
+
+            def estimate(level: Level = level) -> float:
+                # time per spec so far times the specs this level adds
+                nonlocal planned
+                planned = _level_specs(problem, level, hard, hyp_cache, run)
+                fresh = sum(1 for spec, _ in planned[0] if _spec_key(spec) not in prev_specs)
+                return searched_s / max(searched, 1) * max(fresh, 1)
+
+            go, note = _should_relax(run, estimate)
             if not go:
                 if note:
-                    run.not_searched.append(f"relaxation level '{level.name}' ({sentence}): {note}")
+                    run.not_searched.append(f"relaxation level '{level.name}' and wider ({sentence}): {note}")
                     run.warnings.append(
-                        f"no candidate is consistent with every signal, but relaxing the hard rules further "
+                        "no candidate is consistent with every signal, but relaxing the hard rules further "
                         f"(level '{level.name}') was not tried: {note}"
                     )
                 break
@@ -328,8 +338,9 @@ def _solve(
         prev_level = level
         run.levels_run.append(li)
         level_start = time.monotonic()
-        specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
+        specs, complete, warnings = planned or _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
+        run.warnings.extend(w for w in warnings if w not in run.warnings)
         for k, (spec, label) in enumerate(specs):
             if run.stopped_by:
                 run.not_searched.append(f"{label} (level '{level.name}')")
@@ -338,11 +349,12 @@ def _solve(
             if key in prev_specs:
                 continue
             prev_specs.add(key)
+            searched += 1
             _consume(run, spec, li, level)
             if run.stopped_by:
                 run.not_searched.append(f"{label} (level '{level.name}', stopped part-way)")
         _score_pool(run, matches, hard if not level.hard_fragments else [])
-        level_seconds = time.monotonic() - level_start
+        searched_s += time.monotonic() - level_start
     ranked = _ranked(run)
     return run, ranked
 
@@ -351,16 +363,15 @@ def _has_consistent(run: _Run) -> bool:
     return any(e.fit is not None and e.fit.verdict == "consistent" for e in run.entries.values())
 
 
-def _should_relax(run: _Run, level_seconds: float) -> tuple[bool, str]:
+def _should_relax(run: _Run, estimate: Callable[[], float]) -> tuple[bool, str]:
     """Whether the next, wider level runs, and why not when it does not.
 
     A level that leaves no candidate at all (the hard rules contradict the
     data: no reading fits, or every structure built was turned down) is
     always relaxed.  When candidates exist but none fits consistently, the
-    next level runs only if the time left can cover it: a wider level
-    searches a superset of the last one, so it takes at least as long
-    (``RELAX_TIME_FACTOR`` times the last level's time is asked for).  A
-    consistent candidate ends the relaxation.
+    next level runs only if the time left can cover it: ``estimate()`` (the
+    time per generator run so far times the runs the level adds) times
+    ``RELAX_TIME_FACTOR``.  A consistent candidate ends the relaxation.
     """
     if not run.entries:
         return True, ""
@@ -368,22 +379,25 @@ def _should_relax(run: _Run, level_seconds: float) -> tuple[bool, str]:
         return False, ""
     if run.deadline is None:
         return True, ""
-    left = run.deadline - time.monotonic()
-    need = RELAX_TIME_FACTOR * level_seconds
-    if left >= need:
+    need = RELAX_TIME_FACTOR * estimate()
+    if run.deadline - time.monotonic() >= need:
         return True, ""
     # no figures in the sentence: output stays the same bytes for the same input
-    return False, "the time left is less than the wider search would take (it repeats the last level and more)"
+    return False, "the time left is less than the wider search would take"
 
 
-def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run) -> tuple[list, bool]:
+def _level_specs(
+    problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run
+) -> tuple[list, bool, tuple[str, ...]]:
+    """Generator specs of one level (with labels), whether the H-count
+    readings are complete, and the warnings of reading them."""
     from elucidate.generate import AtomSpec, FragmentSpec, Spec
 
     evidence = level.in_force(run.evidence)
     checks = tuple(_Tallied(e, run.tally) for e in evidence)
     if level.margin is None:
         spec = Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem), checks)
-        return [(spec, "every isomer of the formula")], True
+        return [(spec, "every isomer of the formula")], True, ()
     bounds: dict[int, tuple[int, int]] = {}
     for e in evidence:
         for h, (lo, hi) in (e.group_bounds() or {}).items():
@@ -392,9 +406,6 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
     ckey = (level.margin, tuple(sorted(bounds.items())))
     if ckey not in cache:
         cache[ckey] = proton_groups(problem, margin=level.margin, carbon_h=bounds)
-        for w in cache[ckey].warnings:
-            if w not in run.warnings:
-                run.warnings.append(w)
     hset: HypothesisSet = cache[ckey]
     specs = []
     seen = set()
@@ -430,7 +441,7 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
             if frags:
                 label += " with " + ", ".join(f.label or f.smiles for f in frags)
             specs.append((spec, label))
-    return specs, hset.complete
+    return specs, hset.complete, hset.warnings
 
 
 def _options(problem: Problem) -> Any:

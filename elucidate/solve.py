@@ -62,7 +62,8 @@ NOT_SEARCHED_SHOWN = 8
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
 #: A wider level runs on a poor fit only if the time left is at least this
-#: many times what the last level took (it searches a superset of it).
+#: many times its estimated time (time per generator run so far times the
+#: runs it adds; a wider run is larger than a strict one, hence the margin).
 RELAX_TIME_FACTOR = 2.0
 
 

@@ -302,8 +302,9 @@ def _signal_h(problem: Problem) -> tuple[list[int], list[str]]:
 
 
 def _overlapped(s: H1Signal) -> bool:
-    """A multiplet or range of several H below 4.4 ppm: overlapped aliphatic
-    H, whose integral is shared by different groups (common practice)."""
+    """A sharp multiplet or range below 4.4 ppm: aliphatic H overlapped with,
+    or strongly coupled to, other H; its integral may be shared by different
+    groups (common practice)."""
     return s.pattern is None and not s.broad and s.shift < 4.4
 
 

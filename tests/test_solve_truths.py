@@ -61,6 +61,18 @@ def test_strict_rules_admit_the_truth_with_c13(label, case):
     assert reasons == (), f"{label} ({case['source']}): " + " | ".join(reasons)
 
 
+#: 1H only, the strict H-count readings still miss these truths (DEVELOPERS.md,
+#: "Known gaps": overlapped multiplets and broad =CH2 singlets read more
+#: cheaply otherwise); the relaxed levels find them.  Only ever shrink this.
+KNOWN_1H_ONLY_GAPS = {"unknowns_large.toml:nicotine", "unknowns_large.toml:carvone"}
+
+
+def test_strict_rules_admit_the_truth_with_1h_only():
+    # the same check without the 13C list (bench_solve.py runs both settings)
+    rejected = {label for label, case in CASES if strict_rejections(_problem(case, False), case["smiles"])}
+    assert rejected <= KNOWN_1H_ONLY_GAPS, sorted(rejected - KNOWN_1H_ONLY_GAPS)
+
+
 def test_strict_rejections_names_the_broken_rule():
     # ethyl acetate, Gottlieb et al., J. Org. Chem. 1997, 62, 7512: the truth
     # meets every rule; 2-methylpropanoic acid has a CH and two equivalent

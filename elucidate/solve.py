@@ -17,9 +17,11 @@ How the pieces fit (see docs/solve-dev.md):
    spot with a reason), and the best few hundred get the full CP-SAT
    assignment.  Structures whose bound cannot beat the current top ``top``
    are not worth a full model, which keeps the ranking exact.
-4. If no candidate fits well, the hard constraints are relaxed step by step
+4. If a level leaves no candidate, or none fits well and the time left can
+   cover a wider search, the hard constraints are relaxed step by step
    (hard fragments → more hypotheses → multiplicity rules → formula only);
-   each step taken is listed in ``relaxed``.
+   each step taken is listed in ``relaxed``, a step skipped for lack of time
+   in ``not_searched`` and the warnings.
 """
 
 from __future__ import annotations
@@ -46,7 +48,7 @@ from elucidate.model import Candidate, Explanation, Prediction, Problem, Rejecti
 from elucidate.score import reasons as rs
 from elucidate.score.assign import Fit, Weights, assign, quick_bound, unusual_groups
 
-__all__ = ["solve", "explain", "Level", "LEVELS"]
+__all__ = ["solve", "explain", "strict_rejections", "Level", "LEVELS"]
 
 #: Full CP-SAT models run on at least this many of the best-bounded structures.
 FULL_MODEL_MIN = 300
@@ -60,6 +62,10 @@ NOT_SEARCHED_SHOWN = 8
 #: Narrow and wide plausibility margins for the H-distribution hypotheses.
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
+#: A wider level runs on a poor fit only if the time left is at least this
+#: many times its estimated time (time per generator run so far times the
+#: runs it adds; a wider run is larger than a strict one, hence the margin).
+RELAX_TIME_FACTOR = 2.0
 
 
 @dataclass(frozen=True)
@@ -327,21 +333,41 @@ def _search(run: _Run) -> tuple[_Run, list[_Entry]]:
     hyp_cache: dict[tuple, HypothesisSet] = {}
     prev_specs: set = set()
     prev_level: Level | None = None
+    searched_s = 0.0  # time spent in the levels run so far
+    searched = 0  # generator specs run so far
     for li, level in enumerate(LEVELS):
+        planned = None
         if prev_level is not None:
             sentence = _relaxation(prev_level, level, run.evidence)
             if sentence is None:
                 continue
-            if _has_consistent(run) or run.stopped_by:
-                if run.stopped_by:
-                    run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
-                    continue
+            if run.stopped_by:
+                run.not_searched.append(f"relaxation level '{level.name}' ({sentence})")
+                continue
+
+            def estimate(level: Level = level) -> float:
+                # time per spec so far times the specs this level adds
+                nonlocal planned
+                planned = _level_specs(problem, level, hard, hyp_cache, run)
+                fresh = sum(1 for spec, _ in planned[0] if _spec_key(spec) not in prev_specs)
+                return searched_s / max(searched, 1) * max(fresh, 1)
+
+            go, note = _should_relax(run, estimate)
+            if not go:
+                if note:
+                    run.not_searched.append(f"relaxation level '{level.name}' and wider ({sentence}): {note}")
+                    run.warnings.append(
+                        "no candidate is consistent with every signal, but relaxing the hard rules further "
+                        f"(level '{level.name}') was not tried: {note}"
+                    )
                 break
             run.relaxed.append(sentence)
         prev_level = level
         run.levels_run.append(li)
-        specs, complete = _level_specs(problem, level, hard, hyp_cache, run)
+        level_start = time.monotonic()
+        specs, complete, warnings = planned or _level_specs(problem, level, hard, hyp_cache, run)
         run.hypotheses_complete = complete
+        run.warnings.extend(w for w in warnings if w not in run.warnings)
         if run.pool is not None and not run.stopped_by:
             _plan(run, [s for s, _ in specs if _spec_key(s) not in prev_specs], level)
         for k, (spec, label) in enumerate(specs):
@@ -352,10 +378,12 @@ def _search(run: _Run) -> tuple[_Run, list[_Entry]]:
             if key in prev_specs:
                 continue
             prev_specs.add(key)
+            searched += 1
             _consume(run, spec, li, level)
             if run.stopped_by:
                 run.not_searched.append(f"{label} (level '{level.name}', stopped part-way)")
         _score_pool(run, matches, hard if not level.hard_fragments else [])
+        searched_s += time.monotonic() - level_start
     ranked = _ranked(run)
     return run, ranked
 
@@ -364,14 +392,41 @@ def _has_consistent(run: _Run) -> bool:
     return any(e.fit is not None and e.fit.verdict == "consistent" for e in run.entries.values())
 
 
-def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run) -> tuple[list, bool]:
+def _should_relax(run: _Run, estimate: Callable[[], float]) -> tuple[bool, str]:
+    """Whether the next, wider level runs, and why not when it does not.
+
+    A level that leaves no candidate at all (the hard rules contradict the
+    data: no reading fits, or every structure built was turned down) is
+    always relaxed.  When candidates exist but none fits consistently, the
+    next level runs only if the time left can cover it: ``estimate()`` (the
+    time per generator run so far times the runs the level adds) times
+    ``RELAX_TIME_FACTOR``.  A consistent candidate ends the relaxation.
+    """
+    if not run.entries:
+        return True, ""
+    if _has_consistent(run):
+        return False, ""
+    if run.deadline is None:
+        return True, ""
+    need = RELAX_TIME_FACTOR * estimate()
+    if run.deadline - time.monotonic() >= need:
+        return True, ""
+    # no figures in the sentence: output stays the same bytes for the same input
+    return False, "the time left is less than the wider search would take"
+
+
+def _level_specs(
+    problem: Problem, level: Level, hard: list[FragmentMatch], cache: dict, run: _Run
+) -> tuple[list, bool, tuple[str, ...]]:
+    """Generator specs of one level (with labels), whether the H-count
+    readings are complete, and the warnings of reading them."""
     from elucidate.generate import AtomSpec, FragmentSpec, Spec
 
     evidence = level.in_force(run.evidence)
     checks = tuple(_Tallied(e, run.tally) for e in evidence)
     if level.margin is None:
         spec = Spec(problem.formula, None, (), tuple(problem.require), tuple(problem.forbid), _options(problem), checks)
-        return [(spec, "every isomer of the formula")], True
+        return [(spec, "every isomer of the formula")], True, ()
     bounds: dict[int, tuple[int, int]] = {}
     for e in evidence:
         for h, (lo, hi) in (e.group_bounds() or {}).items():
@@ -380,9 +435,6 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
     ckey = (level.margin, tuple(sorted(bounds.items())))
     if ckey not in cache:
         cache[ckey] = proton_groups(problem, margin=level.margin, carbon_h=bounds)
-        for w in cache[ckey].warnings:
-            if w not in run.warnings:
-                run.warnings.append(w)
     hset: HypothesisSet = cache[ckey]
     specs = []
     seen = set()
@@ -402,7 +454,7 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
                 if carved is None:
                     ok = False
                     break
-                groups, bare, frag = carved
+                groups, bare, frag, _ = carved
                 frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
             if not ok:
                 continue
@@ -418,7 +470,7 @@ def _level_specs(problem: Problem, level: Level, hard: list[FragmentMatch], cach
             if frags:
                 label += " with " + ", ".join(f.label or f.smiles for f in frags)
             specs.append((spec, label))
-    return specs, hset.complete
+    return specs, hset.complete, hset.warnings
 
 
 def _options(problem: Problem) -> Any:
@@ -473,13 +525,15 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
     # H of a phenyl), so atoms of one (element, H) class share the union of
     # their groups' neighbour rules — or get none if any group has none.
     nb: dict[int, frozenset[int]] = {}
+    taken: list[Group] = []
     for members in picked.values():
         sets = [g.neighbour_h for _, g in members]
-        if all(x is not None for x in sets):
-            union = frozenset().union(*sets)
-            for idx, _ in members:
+        union = frozenset().union(*sets) if all(x is not None for x in sets) else None
+        for idx, g in members:
+            taken.append(Group(g.kind, g.element, g.h_count, g.signals, union))
+            if union is not None:
                 nb[idx] = union
-    return groups, {k: v for k, v in bare.items() if v}, (match.rule.smiles, nb, match.rule.name)
+    return groups, {k: v for k, v in bare.items() if v}, (match.rule.smiles, nb, match.rule.name), taken
 
 
 def _remaining(run: _Run) -> tuple[float | None, int | None]:
@@ -793,49 +847,109 @@ def _hypothesis_fits(hyp: Hypothesis, atoms: list[tuple[str, int, int]]) -> bool
     return all(augment(gi, set()) for gi in range(len(groups)))
 
 
-def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard: list[FragmentMatch]) -> list[str]:
-    """Why a structure violates the strict hard constraints (empty if it does not)."""
-    atoms = _structure_atoms(smiles)
-    reasons: list[str] = []
-    if not hset.hypotheses:
-        return reasons
-    if any(_hypothesis_fits(h, atoms) for h in hset.hypotheses):
-        pass
-    else:
-        best = hset.hypotheses[0]
-        has_h = _hypothesis_fits(best.without_neighbour_rules(), atoms)
-        if has_h:
-            # the H counts fit: name the multiplicity rules that fail
-            for i, s in enumerate(problem.h1):
-                gs = [g for g in best.groups if g.signals == (i,) and g.neighbour_h is not None]
-                for g in gs:
-                    hits = [nb for el, h, nb in atoms if el == g.element and h == g.h_count]
-                    if not any(nb in g.neighbour_h for nb in hits):
-                        want = "/".join(str(v) for v in sorted(g.neighbour_h))
-                        have = ", ".join(str(v) for v in sorted(set(hits))) or "none"
-                        reasons.append(
-                            f"the {rs.describe_signal(s)} needs a {g.kind} with {want} H on neighbouring "
-                            f"carbons (n+1 rule); this structure's {g.kind} groups have {have}"
-                        )
-                        break
-        if not reasons:
-            counts: dict[str, int] = {}
-            for el, h, _ in atoms:
-                key = (f"{el}H{h}" if h > 1 else f"{el}H") if h else f"{el} without H"
-                counts[key] = counts.get(key, 0) + 1
-            have = ", ".join(f"{n} {k}" for k, n in sorted(counts.items()))
-            reasons.append(
-                "its H distribution matches no reading of the peak list "
-                f"(structure: {have}; most likely reading: {best.describe()})"
-            )
-    graph = Graph.from_smiles(smiles)
-    for e in read_evidence(problem):
-        why = e.reason(graph)
-        if why is not None:
-            reasons.append(f"{why} ({e.title}, a hard rule)")
+def strict_rejections(problem: Problem, smiles: str) -> tuple[str, ...]:
+    """Why a structure breaks the hard constraints of the strictest level.
+
+    The same constraints the search applies at level ``strict`` (the first
+    of :data:`LEVELS`): the H-count readings of the peak list with their
+    n+1 neighbour-H rules (narrowed by any DEPT counts in force), the hard
+    fragments carved out as the search carves them, the evidence in force
+    and the user's SMARTS.  Cheap: nothing is generated.
+
+    Parameters
+    ----------
+    problem : Problem
+        The unknown.
+    smiles : str
+        The structure (any valid SMILES).
+
+    Returns
+    -------
+    tuple of str
+        One sentence per broken rule; empty when the structure meets them
+        all (then the strict search can produce it).
+
+    Raises
+    ------
+    InputError
+        Bad SMILES (names it), or a problem without 1H signals.
+
+    Examples
+    --------
+    >>> from elucidate.parse import load_problem
+    >>> p = load_problem(formula="C4H8O2",
+    ...     h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)")
+    >>> strict_rejections(p, "CCOC(C)=O")
+    ()
+    >>> strict_rejections(p, "COCC(C)=O")[0].startswith("the 2H quartet at 4.12 ppm needs a CH2 with 3 H")
+    True
+    """
+    _validate(problem, 1, None, None)
+    canonical = _canonical(smiles)
+    if _formula_of(canonical) != problem.formula.hill:
+        return (f"its formula is {_formula_of(canonical)}, not {problem.formula.hill}",)
+    return tuple(_constraint_reasons(problem, canonical, LEVELS[0]))
+
+
+def _strict_hypotheses(problem: Problem, level: Level, evidence: tuple[Evidence, ...]) -> HypothesisSet:
+    """The H-count readings the search uses at ``level`` (DEPT bounds applied)."""
+    bounds: dict[int, tuple[int, int]] = {}
+    for e in level.in_force(evidence):
+        for h, (lo, hi) in (e.group_bounds() or {}).items():
+            old = bounds.get(h, (0, problem.formula["C"]))
+            bounds[h] = (max(old[0], lo), min(old[1], hi))
+    return proton_groups(problem, margin=level.margin, carbon_h=bounds)
+
+
+def _carved_hypotheses(hyp: Hypothesis, choices: list[tuple[FragmentMatch, ...]]) -> list[Hypothesis]:
+    """The hypothesis as each choice of hard fragments leaves it for the
+    generator: fragment atoms keep the union of their groups' neighbour rules."""
+    out = []
+    for choice in choices:
+        groups = list(hyp.groups)
+        bare = dict(hyp.bare)
+        carved_groups: list[Group] = []
+        ok = True
+        for match in choice:
+            carved = _carve(groups, bare, match)
+            if carved is None:
+                ok = False
+                break
+            groups, bare, _, taken = carved
+            carved_groups += taken
+        if ok:
+            out.append(Hypothesis(tuple(groups + carved_groups), hyp.bare, hyp.cost, hyp.readings))
+    return out
+
+
+def _constraint_reasons(problem: Problem, smiles: str, level: Level) -> list[str]:
+    """Why a structure violates the hard constraints of ``level`` (empty if it does not)."""
     from rdkit import Chem
 
+    atoms = _structure_atoms(smiles)
     mol = Chem.MolFromSmiles(smiles)
+    evidence = read_evidence(problem)
+    hset = _strict_hypotheses(problem, level, evidence)
+    hard = [m for m in match_fragments(problem) if m.rule.strength == "hard"] if level.hard_fragments else []
+    # only the fragment choices this structure contains can produce it
+    present = [
+        choice for choice in hard_alternatives(hard)
+        if all(mol.HasSubstructMatch(_fragment_query(m.rule.smiles)) for m in choice)
+    ]
+    reasons: list[str] = []
+    if not hset.hypotheses:
+        reasons.append("no reading of the peak list as H-bearing groups fits the formula"
+                       + (" and the DEPT counts" if any(e.group_bounds() for e in evidence) else ""))
+    elif present:
+        fits = [
+            carved for hyp in hset.hypotheses for carved in _carved_hypotheses(hyp, present)
+        ]
+        if not any(_hypothesis_fits(h, atoms) for h in fits):
+            reasons += _hypothesis_reasons(problem, hset, atoms)
+    for e in level.in_force(evidence):
+        why = e.reason(Graph.from_smiles(smiles))
+        if why is not None:
+            reasons.append(f"{why} ({e.title}, a hard rule)")
     for alternatives in by_family(hard):
         if any(mol.HasSubstructMatch(_fragment_query(m.rule.smiles)) for m in alternatives):
             continue
@@ -861,6 +975,40 @@ def _constraint_reasons(problem: Problem, smiles: str, hset: HypothesisSet, hard
     return reasons
 
 
+def _hypothesis_reasons(problem: Problem, hset: HypothesisSet, atoms: list[tuple[str, int, int]]) -> list[str]:
+    """Sentences for a structure that no H-count reading (with its n+1 rules) fits."""
+    best = next((h for h in hset.hypotheses if _hypothesis_fits(h.without_neighbour_rules(), atoms)), None)
+    reasons: list[str] = []
+    if best is not None:
+        # the H counts fit: name the multiplicity rules that fail
+        for i, s in enumerate(problem.h1):
+            for g in (g for g in best.groups if g.signals == (i,) and g.neighbour_h is not None):
+                hits = [nb for el, h, nb in atoms if el == g.element and h == g.h_count]
+                if not any(nb in g.neighbour_h for nb in hits):
+                    want = "/".join(str(v) for v in sorted(g.neighbour_h))
+                    have = ", ".join(str(v) for v in sorted(set(hits))) or "none"
+                    reasons.append(
+                        f"the {rs.describe_signal(s)} needs a {g.kind} with {want} H on neighbouring "
+                        f"carbons (n+1 rule); this structure's {g.kind} groups have {have}"
+                    )
+                    break
+        if not reasons:
+            reasons.append(
+                "its groups cannot all meet the n+1 neighbour-H rules of the H-count reading "
+                f"({best.describe()}) at once"
+            )
+        return reasons
+    counts: dict[str, int] = {}
+    for el, h, _ in atoms:
+        key = (f"{el}H{h}" if h > 1 else f"{el}H") if h else f"{el} without H"
+        counts[key] = counts.get(key, 0) + 1
+    have = ", ".join(f"{n} {k}" for k, n in sorted(counts.items()))
+    return [
+        "its H distribution matches no reading of the peak list "
+        f"(structure: {have}; most likely reading: {hset.hypotheses[0].describe()})"
+    ]
+
+
 def _formula_of(smiles: str) -> str:
     from rdkit import Chem
     from rdkit.Chem.rdMolDescriptors import CalcMolFormula
@@ -878,9 +1026,7 @@ def _explain(
     if formula != problem.formula.hill:
         reason = f"its formula is {formula}, not {problem.formula.hill}"
         return Explanation(problem, smiles, "rejected", None, 0, None, Rejection(smiles, (reason,)), (reason,), True, ())
-    hset = proton_groups(problem, margin=MARGIN_STRICT)
-    hard = [m for m in match_fragments(problem) if m.rule.strength == "hard"]
-    constraint_reasons = _constraint_reasons(problem, smiles, hset, hard)
+    constraint_reasons = _constraint_reasons(problem, smiles, LEVELS[0])
     prediction = predict(smiles, solvent=problem.solvent, field_mhz=problem.field_mhz)
     bound, quick_reason = quick_bound(problem, prediction)
     fit = None

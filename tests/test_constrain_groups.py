@@ -129,6 +129,44 @@ def test_neighbour_counts_with_fluorine_only_bound_above():
     assert set(neighbour_counts(sig(1.35, "t", 3, [7.0]), f)) == {0, 1, 2}
 
 
+@pytest.mark.parametrize(
+    "name, signal, groups, expected",
+    [
+        # isochronous H do not split each other (common practice)
+        ("1,2-dichloroethane, 3.73 (s, 4H)", sig(3.73, "s", 4), 2, {0, 2}),      # Gottlieb et al. 1997
+        ("benzene, 7.36 (s, 6H)", sig(7.36, "s", 6), 6, {0, 1, 2, 3}),               # Gottlieb et al. 1997
+        ("butane CH2, q (4H)", sig(1.30, "q", 4, [7.3]), 2, {3, 5}),              # from memory
+        ("isopropyl CH3 pair, d (6H)", sig(0.93, "d", 6, [6.7]), 2, {1}),        # a CH3 has one neighbour
+        # AA'BB' ring pair: the apparent dd of a phthalate is only an upper bound
+        ("dimethyl phthalate, 7.72 (dd, 5.7, 3.3, 2H)", sig(7.72, "dd", 2, [5.7, 3.3]), 2, {0, 1, 2, 3}),  # from memory
+    ],
+)
+def test_neighbour_counts_of_several_groups_in_one_signal(name, signal, groups, expected):
+    f = formula(C=10, H=10, O=4)
+    assert set(neighbour_counts(signal, f, groups=groups)) == expected
+
+
+def test_geminal_j_marks_a_split_ch2():
+    # camphor, CDCl3 (benchmark data, unknowns_large.toml, from memory):
+    # 2.35 (ddd, 18.3, ...) and 1.84 (d, 18.3) are the two H of the CH2 next
+    # to C=O; a J of 12-18 Hz on sp3 H is geminal (common practice), so a
+    # reading with that split CH2 stays within the strict margin (3)
+    from elucidate.parse import load_problem
+
+    p = load_problem(
+        formula="C10H16O",
+        h1="2.35 (ddd, J = 18.3, 4.7, 3.2 Hz, 1H), 2.09 (t, J = 4.5 Hz, 1H), 1.98-1.90 (m, 1H), "
+           "1.84 (d, J = 18.3 Hz, 1H), 1.72-1.64 (m, 1H), 1.45-1.30 (m, 2H), 0.96 (s, 3H), 0.92 (s, 3H), 0.84 (s, 3H)",
+    )
+    hs = proton_groups(p, margin=3)
+    assert any(any(g.kind == "CH2 (split)" and 0 in g.signals for g in h.groups) for h in hs.hypotheses)
+    assert any(
+        sorted(g.kind for g in h.groups).count("CH2 (split)") + sorted(g.kind for g in h.groups).count("CH2") == 3
+        and sum(g.kind == "CH" for g in h.groups) == 1
+        for h in hs.hypotheses
+    )  # the true distribution: 3 CH2, 1 CH, 3 CH3
+
+
 def test_attachment_classes():
     assert attachment_class(sig(11.5, "s", 1, broad=True)).startswith("acid")
     assert attachment_class(sig(7.3, "m", 5)).startswith("aromatic")

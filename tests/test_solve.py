@@ -197,3 +197,29 @@ def test_demoted_family_costs_once():
     assert sum("ring, one of which the data suggest" in n for n in notes) == 1
     assert _soft_terms("Cc1ccccc1[N+](=O)[O-]", hard)[0] == _soft_terms("Cc1ccccc1[N+](=O)[O-]", [])[0]
     assert _soft_terms("Cc1cccc([N+](=O)[O-])c1", hard)[0] == _soft_terms("Cc1cccc([N+](=O)[O-])c1", [])[0]
+
+
+def test_relaxation_on_a_poor_fit_needs_time_for_the_wider_level():
+    # The relaxation trigger (DEVELOPERS.md, "Levels and relaxation"): no
+    # candidate -> always relax; only poor fits -> relax only when the time
+    # left covers RELAX_TIME_FACTOR x the estimated time of the wider level;
+    # a consistent fit stops.
+    import time as _time
+
+    from elucidate.solve import RELAX_TIME_FACTOR, _Entry, _Run, _should_relax
+
+    class _Fit:
+        def __init__(self, verdict):
+            self.verdict = verdict
+
+    p = load_problem(formula="C4H8O2", h1=EA_H1)
+    run = _Run(p, _time.monotonic() + 5.0, None)
+    assert _should_relax(run, lambda: 100.0) == (True, "")  # nothing found: relax whatever the time
+    run.entries["CCOC(C)=O"] = _Entry("CCOC(C)=O", None, 1.0, 0, _Fit("poor fit"))
+    go, note = _should_relax(run, lambda: 100.0)
+    assert not go and "time left" in note
+    assert _should_relax(run, lambda: 5.0 / (RELAX_TIME_FACTOR * 10)) == (True, "")
+    run.deadline = None
+    assert _should_relax(run, lambda: 100.0) == (True, "")  # no time limit: relax
+    run.entries["CCOC(C)=O"].fit = _Fit("consistent")
+    assert _should_relax(run, lambda: 0.0) == (False, "")

@@ -13,17 +13,8 @@ Pattern keys (all optional):
     same_j, sharp, broad}``; each must match a different observed signal.
     ``same_j`` asks for a coupling shared (±0.6 Hz) with the previous
     signal of the list.
-``all_ortho``
-    every ring H of the window has an ortho neighbour: a 1H signal there is
-    a multiplet or shows a J of 6.5 Hz or more (no isolated ring H).
-``aromatic_window``, ``aromatic_h``, ``within``
-    the H of all sharp signals inside ``aromatic_window`` add up to ``aromatic_h``
-    and all those signals lie inside ``within``.
 ``min_carbons``, ``min_dou``, ``min_oxygens``, ``elements``
     conditions on the formula.
-``ring_h``
-    for ring fragments matched through the aromatic window: number of
-    fragment H taken from those signals.
 ``no_elements``
     the formula must lack these elements (e.g. F and P, whose couplings to
     H mimic H-H couplings).
@@ -41,7 +32,8 @@ per signal: ``need_j``, ``other_j_max``
     J below ``ignore_below`` are dropped, a J in no class rules the pattern
     out) and the signals must fill the ring's ``positions`` (one string of
     class letters per ring H: the couplings that H shows).  ``m``,
-    J-less and several-H singlet signals (coincident H) fill any position.
+    J-less and several-H singlet signals (coincident H) fill any position;
+    ``within`` optionally narrows where all of them must lie.
 ``family``
     rules of one family are alternatives: when several match, the solver
     needs one of them (each is tried in turn); a family with a soft member
@@ -236,11 +228,6 @@ class FragmentRule:
     source: str
     weight: float = 1.0
     signals: tuple[SignalPattern, ...] = ()
-    aromatic_window: tuple[float, float] | None = None
-    all_ortho: bool = False
-    aromatic_h: int | None = None
-    within: tuple[float, float] | None = None
-    ring_h: int = 0
     min_carbons: int = 0
     min_dou: float = 0.0
     min_oxygens: int = 0
@@ -275,17 +262,6 @@ def _pair(value: object, where: str) -> tuple[float, float]:
     return float(value[0]), float(value[1])
 
 
-def _ortho_coupled(s: H1Signal) -> bool:
-    """A 1H signal that could be a ring H with an ortho neighbour: several H,
-    a multiplet or range, or a reported J of at least 6.5 Hz (common practice:
-    J(ortho) 7-9 Hz)."""
-    if round(s.h_count) > 1 or s.multiplicity == "m" or s.shift_low != s.shift_high:
-        return True
-    if not s.couplings:
-        return s.multiplicity != "s"
-    return any(j >= 6.5 for j in s.couplings)
-
-
 def _rule(key: str, data: dict) -> FragmentRule:
     where = f"{key}.toml"
     for required in ("name", "smiles", "strength", "source"):
@@ -293,6 +269,9 @@ def _rule(key: str, data: dict) -> FragmentRule:
             raise InputError(f"fragment file {where}: missing key '{required}'")
     if data["strength"] not in ("hard", "soft"):
         raise InputError(f"fragment file {where}: strength must be 'hard' or 'soft'")
+    for old in ("aromatic_window", "aromatic_h", "all_ortho", "ring_h"):
+        if old in data:
+            raise InputError(f"fragment file {where}: key '{old}' is no longer read; give the ring H as a [ring] table")
     pats = []
     for sp in data.get("signals", []):
         pats.append(
@@ -317,11 +296,6 @@ def _rule(key: str, data: dict) -> FragmentRule:
         source=str(data["source"]),
         weight=float(data.get("weight", 1.0)),
         signals=tuple(pats),
-        aromatic_window=_pair(data["aromatic_window"], where) if "aromatic_window" in data else None,
-        all_ortho=bool(data.get("all_ortho", False)),
-        aromatic_h=data.get("aromatic_h"),
-        within=_pair(data["within"], where) if "within" in data else None,
-        ring_h=int(data.get("ring_h", 0)),
         min_carbons=int(data.get("min_carbons", 0)),
         min_dou=float(data.get("min_dou", 0)),
         min_oxygens=int(data.get("min_oxygens", 0)),
@@ -418,26 +392,12 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
             continue
         if any(f[el] == 0 for el in rule.elements) or any(f[el] > 0 for el in rule.no_elements):
             continue
-        used: list[int] = []
-        if rule.aromatic_window is not None:
-            lo, hi = rule.aromatic_window
-            # broad signals in the window are NH/OH (common practice), not ring H
-            inside = [i for i, s in enumerate(problem.h1) if lo <= s.shift <= hi and not s.broad]
-            if sum(round(problem.h1[i].h_count) for i in inside) != rule.aromatic_h:
-                continue
-            if rule.all_ortho and not all(_ortho_coupled(problem.h1[i]) for i in inside):
-                continue
-            if rule.within is not None and not all(
-                rule.within[0] <= problem.h1[i].shift <= rule.within[1] for i in inside
-            ):
-                continue
-            if not rule.signals:
-                used = inside
+        used: tuple[int, ...] = ()
         if rule.ring is not None:
             ring_used = _ring_match(problem.h1, rule.ring)
             if ring_used is None:
                 continue
-            used = sorted(set(used) | set(ring_used))
+            used = ring_used
         picked = _pick(problem.h1, rule.signals, (), rule.exclusive_j)
         if picked is None:
             continue

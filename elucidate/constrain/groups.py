@@ -60,6 +60,14 @@ _SMALL_J = 3.2
 
 _SOLVENTS_SHOWING_XH_COUPLING = ("dmso", "acetone")
 
+# A J this large (Hz) on an sp3 H is geminal: the H is one of a CH2 pair
+# (2J(H,H) 12-18 Hz; vicinal sp3 couplings stay below about 12 Hz: common practice).
+_GEMINAL_J = 12.0
+
+# Ring H (aromatic, heteroaromatic) lie at or above this shift (ppm; the
+# window of the ring fragment rules, common practice).
+_RING_H_LOW = 6.3
+
 
 @dataclass(frozen=True)
 class Group:
@@ -168,6 +176,7 @@ def neighbour_counts(
     *,
     has_xh: bool = False,
     has_nh: bool = False,
+    groups: int = 1,
 ) -> frozenset[int] | None:
     """Allowed numbers of H on carbons bonded to the atom(s) of this signal.
 
@@ -179,6 +188,16 @@ def neighbour_counts(
     slow exchange) and OH in DMSO-d6 or acetone-d6, which the generator's
     count (H on carbon only) leaves out.
 
+    When the signal holds ``groups`` > 1 groups of one kind, H of the same
+    signal do not split each other (isochronous H show no coupling among
+    themselves: the four H of 1,2-dichloroethane are one singlet), so up to
+    ``groups - 1`` neighbours from the signal itself may add their H
+    uncounted.  Two or more equivalent ring H in one signal (shift at least
+    6.3 ppm) belong to an AA'BB'-type system whose second-order lines can
+    look like more splittings than there are neighbours (the "dd, J = 5.7,
+    3.3 Hz" of a phthalate): the count is then only an upper bound (common
+    practice).
+
     Examples
     --------
     >>> from elucidate.model import H1Signal, Formula
@@ -187,6 +206,8 @@ def neighbour_counts(
     [3]
     >>> sorted(neighbour_counts(H1Signal(2.33, 2.33, 2.33, "dq", (7.5, 1.5), 2, 2), f))
     [1, 2, 3, 4]
+    >>> sorted(neighbour_counts(H1Signal(3.73, 3.73, 3.73, "s", (), 4, 4), f, groups=2))
+    [0, 2]
     """
     pattern = signal.pattern
     if pattern is None or signal.broad:
@@ -213,6 +234,16 @@ def neighbour_counts(
         # J ~5 Hz); OH does so in DMSO-d6/acetone-d6 (common practice). The
         # generator counts only H on carbon, so allow up to two fewer.
         allowed |= {v - k for v in allowed for k in (1, 2) if v - k >= 0}
+    if groups > 1:
+        per = max(1, round(signal.h_count) // groups)
+        if signal.shift >= _RING_H_LOW and per == 1 and pattern != (1,):
+            allowed = set(range(0, max(allowed) + 1))
+        # a carbon with `per` H has at most 4 - per heavy neighbours, and v H
+        # on the others need at least ceil(v / 3) of them
+        allowed |= {
+            v + j * per for v in allowed for j in range(1, groups)
+            if j + -(-v // 3) <= 4 - per
+        }
     return frozenset(allowed)
 
 
@@ -270,13 +301,23 @@ def _signal_h(problem: Problem) -> tuple[list[int], list[str]]:
     return hs, warnings
 
 
+def _overlapped(s: H1Signal) -> bool:
+    """A sharp multiplet or range below 4.4 ppm: aliphatic H overlapped with,
+    or strongly coupled to, other H; its integral may be shared by different
+    groups (common practice)."""
+    return s.pattern is None and not s.broad and s.shift < 4.4
+
+
 def _kind_cost(kind: str, s: H1Signal, n_groups: int) -> int:
     d = s.shift
     sharp_multiplet = s.pattern is not None and s.pattern != (1,) and not s.broad
     cost = 0
     if kind in ("OH", "NH", "NH2", "SH"):
         if sharp_multiplet:
-            cost += 4
+            # an OH/NH coupled to its CH (d or t, 3J 3-6 Hz) in a dry sample
+            # is seen; larger or several couplings are C-H (common practice)
+            one_small_j = len(s.pattern or ()) == 1 and all(j <= 6.0 for j in s.couplings)
+            cost += 2 if one_small_j and s.couplings else 4
         elif not s.broad:
             cost += 1
     else:
@@ -286,12 +327,21 @@ def _kind_cost(kind: str, s: H1Signal, n_groups: int) -> int:
             cost += 4
         if kind == "CH3" and d > 4.1:
             cost += 2
+        # a CH3 gives a sharp s/d/t; one reported as a multiplet is usually
+        # overlapped by other H (common practice)
+        if kind == "CH3" and _overlapped(s):
+            cost += 1 if n_groups == 1 else 2
         # several equivalent CH2 or CH in one aliphatic signal: possible
         # (symmetry) but less usual than CH3 groups or one CH2
         if kind in ("CH", "CH2") and d < 4.4 and n_groups > 1:
             cost += 2
         if kind == "CH2/2":
-            cost += 1 if 4.4 <= d <= 6.6 else 2
+            # a ring CH2 often shows its two H apart in overlapped multiplets;
+            # a 1H sp3 signal with a J of 12 Hz or more shows its geminal
+            # partner (2J(H,H) 12-18 Hz, common practice)
+            geminal = d < 4.4 and round(s.h_count) == 1 and any(j >= _GEMINAL_J for j in s.couplings)
+            if not geminal:
+                cost += 1 if 4.4 <= d <= 6.6 or _overlapped(s) else 2
     return cost
 
 
@@ -341,7 +391,8 @@ def _proton_groups(
         m.add(n_types <= max_types)
         extra = m.new_int_var(0, max_types, f"mix{i}")
         m.add(extra >= n_types - 1)
-        cost_terms.append(3 * extra)
+        # an overlapped aliphatic multiplet of several H is often a mixture
+        cost_terms.append((2 if _overlapped(s) and n >= 2 else 3) * extra)
         for k, _ in kinds_here:
             # cost per group kind is a function of the count (n_groups) — use the
             # one-group and several-group costs
@@ -434,7 +485,10 @@ def _proton_groups(
     seen: dict[tuple, Hypothesis] = {}
     for cost, values in sorted(solutions, key=lambda cv: (cv[0], sorted((str(k), v) for k, v in cv[1].items()))):
         hyp = _build(problem, formula, hs, values, cost)
-        k = hyp.key()
+        # readings that give the generator the same atoms may still differ in
+        # which signal holds which group, and fragment rules carve their atoms
+        # out of the matched signals' groups: keep both
+        k = (hyp.key(), tuple(sorted((g.spec_key(), g.signals) for g in hyp.groups)))
         if k not in seen or seen[k].cost > hyp.cost:
             seen[k] = hyp
     hyps = sorted(seen.values(), key=lambda h: (h.cost, repr(h.key())))
@@ -453,7 +507,10 @@ def _build(problem: Problem, formula: Formula, hs: list[int], values: dict, cost
         kinds = [(k, values.get((i, k), 0)) for k, _, _ in GROUP_KINDS]
         present = [(k, v) for k, v in kinds if v]
         pure = len(present) == 1 and present[0][0] in ("CH3", "CH2", "CH")
-        nb = neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh) if pure else None
+        nb = (
+            neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh, groups=present[0][1])
+            if pure else None
+        )
         text = []
         for kind, count in present:
             text.append(f"{count} {kind}" if count > 1 else kind)

@@ -155,16 +155,47 @@ def _units(env: Environment, smiles: str = "") -> tuple[int, int]:
 @functools.lru_cache(maxsize=4096)
 def _apart(smiles: str, atoms: tuple[int, ...]) -> bool:
     """Whether two topologically equivalent groups may still show apart:
-    both on one alkene carbon (E/Z to the other end) or on an amide N
-    (slow C–N rotation) — common practice."""
+    both on one alkene carbon (E/Z to the other end), on an amide N (slow
+    C–N rotation), or on one sp3 carbon of a molecule with a stereocentre
+    elsewhere (diastereotopic groups: the isopropyl methyls of menthol, the
+    gem-dimethyl of camphor give two signals); so may a pair bonded to such
+    a pair, up to two bonds out (the two CH3 of an N,N-diethylamide) —
+    common practice."""
     from rdkit import Chem
 
     mol = Chem.MolFromSmiles(smiles) if smiles else None
     if mol is None or max(atoms) >= mol.GetNumAtoms():
         return False
+    ranks = list(Chem.CanonicalRankAtoms(mol, breakTies=False))
+    pair = (atoms[0], atoms[1])
+    for _ in range(3):
+        if _apart_here(mol, pair):
+            return True
+        a, b = (mol.GetAtomWithIdx(i) for i in pair)
+        step = [
+            (x.GetIdx(), y.GetIdx()) for x in a.GetNeighbors() for y in b.GetNeighbors()
+            if x.GetIdx() != y.GetIdx() and ranks[x.GetIdx()] == ranks[y.GetIdx()]
+            and x.GetIdx() not in pair and y.GetIdx() not in pair
+        ]
+        if len(step) != 1:
+            return False
+        pair = step[0]
+    return False
+
+
+def _apart_here(mol: Any, atoms: tuple[int, int]) -> bool:
+    from rdkit import Chem
+
+    from elucidate.predict.environments import stereocentres
+
     a, b = (mol.GetAtomWithIdx(i) for i in atoms)
     common = {n.GetIdx() for n in a.GetNeighbors()} & {n.GetIdx() for n in b.GetNeighbors()}
+    centres: list[int] | None = None
     for x in (mol.GetAtomWithIdx(i) for i in common):
+        if x.GetSymbol() == "C" and x.GetHybridization() == Chem.HybridizationType.SP3:
+            centres = stereocentres(mol) if centres is None else centres
+            if any(c != x.GetIdx() for c in centres):
+                return True
         for bond in x.GetBonds():
             other = bond.GetOtherAtom(x)
             if x.GetSymbol() == "C" and bond.GetBondType() == Chem.BondType.DOUBLE and other.GetSymbol() == "C":

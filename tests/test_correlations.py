@@ -99,10 +99,39 @@ def test_diagonal_and_duplicates() -> None:
     assert any("diagonal" in w for w in p.warnings)
 
 
-def test_no_13c_list_is_a_warning() -> None:
-    p = load_problem(formula="C4H8O2", h1=ETOAC["h1"], hsqc="4.12/60.5")
-    assert not p.correlations[0].matched
-    assert any("no 13C list" in w for w in p.warnings)
+def test_no_13c_list_takes_the_lines_from_the_cross_peaks() -> None:
+    # ethyl acetate (Gottlieb et al. 1997 values, recalled) with no 13C list: the δC of the
+    # cross peaks become the lines; HMBC 171.2 and 171.4 (one carbon read twice) are one line
+    p = load_problem(formula="C4H8O2", h1=ETOAC["h1"], hsqc="4.12/60.5, 2.05/21.0",
+                     hmbc="2.05/171.4, 4.12/171.2")
+    assert [c.shift for c in p.c13] == [171.3, 60.5, 21.0]
+    assert all(c.matched for c in p.correlations)
+    assert p.correlations[2].signal2 == p.correlations[3].signal2 == 0
+    assert any("no 13C list given: 3 13C line(s) taken from" in w for w in p.warnings)
+
+
+def test_no_13c_list_lines_close_together_are_not_one_carbon() -> None:
+    # ethylbenzene (from memory, literature spectrum, CDCl3): meta CH 128.4 and ortho CH 127.9
+    # are within the matching tolerance, so without a 13C list they make one line; its HSQC
+    # peaks to two 1H signals must not be read as one CH2 carbon (the truth has no such CH2)
+    p = load_problem(formula="C8H10", h1="7.31-7.27 (m, 2H), 7.22-7.16 (m, 3H), 2.65 (q, J = 7.6 Hz, 2H), "
+                     "1.24 (t, J = 7.6 Hz, 3H)",
+                     hsqc="7.29/128.4, 7.19/127.9, 7.19/125.6, 2.65/28.9, 1.24/15.6", hmbc="1.24/144.2")
+    assert [c.shift for c in p.c13] == [144.2, 128.2, 125.6, 28.9, 15.6]
+    strict = correlation_evidence(p)[0]
+    assert strict.reason(Graph.from_smiles("CCc1ccccc1")) is None
+    assert 2 not in (strict.group_bounds() or {})
+
+
+def test_solve_without_13c_list_uses_the_cross_peaks() -> None:
+    # methyl propanoate, 1D from memory; cross peaks implied by the structure (common practice):
+    # with no 13C list the 2D peaks alone still single out the truth
+    from elucidate.solve import solve
+
+    result = solve(load_problem(formula=MEPROP["formula"], h1=MEPROP["h1"],
+                                hsqc="3.67/51.6, 2.32/27.5, 1.14/9.2", hmbc="3.67/174.9, 1.14/174.9",
+                                cosy="2.32/1.14"), time_limit_s=60)
+    assert [c.smiles for c in result.candidates] == ["CCC(=O)OC"]
 
 
 def test_case_file_inline_and_csv(tmp_path: Path) -> None:

@@ -53,6 +53,7 @@ from typing import Any
 
 from elucidate.constrain.evidence import _NEEDS, Evidence, Graph, carbon_regions
 from elucidate.model import Problem
+from elucidate.parse.correlations import is_from_cross_peaks
 
 __all__ = ["MAX_NODES", "Correlations", "correlation_evidence", "signal_totals"]
 
@@ -96,6 +97,7 @@ class _Line:
     shift: float
     h: int  # DEPT attached H, -1 if not given
     need: str = ""  # what the line's 13C shift region asks of its carbon (constrain/data/c13_regions.csv)
+    derived: bool = False  # read off the cross peaks (no 13C list): may stand for several carbons
 
 
 @dataclass(frozen=True)
@@ -247,11 +249,11 @@ class Correlations(Evidence):
                 by_line.setdefault(p.b, set()).add(p.a)
         if not by_line or self.n_carbons <= 0:
             return None
-        out = {0: (0, max(0, self.n_carbons - len(by_line)))}
+        out = {0: (0, max(0, self.n_carbons - sum(1 for line in by_line if not self.lines[line].derived)))}
         if not self.long_range:
             split = sum(
-                1 for sigs in by_line.values()
-                if len(sigs) >= 2 and all(1 in self.signals[s].totals for s in sigs)
+                1 for line, sigs in by_line.items()
+                if len(sigs) >= 2 and not self.lines[line].derived and all(1 in self.signals[s].totals for s in sigs)
             )
             if split:
                 out[2] = (split, self.n_carbons)
@@ -359,7 +361,7 @@ class Correlations(Evidence):
             if peak.kind == "HSQC":
                 hsqc_by_line.setdefault(peak.b, []).append(peak.a)
         for line, sigs in sorted(hsqc_by_line.items()):
-            if self.long_range:
+            if self.long_range or self.lines[line].derived:
                 for s in sorted(set(sigs)):
                     var(("hsqc", line, s), _Var((s,), line, True))
             else:  # one carbon per line: its HSQC signals share it
@@ -590,9 +592,13 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         if j not in line_ids:
             c = problem.c13[j]
             line_ids[j] = len(lines)
-            region = next((r for r in carbon_regions() if r.holds(c.shift)), None)
+            derived = is_from_cross_peaks(c)
+            # a line read off the cross peaks spans the δC values that made it
+            ends = {c.shift} if not derived else {
+                p.shift2 for p in problem.correlations if p.kind in ("HSQC", "HMBC") and p.signal2 == j}
+            regions = {next((r.needs for r in carbon_regions() if r.holds(x)), "") for x in ends or {c.shift}}
             lines.append(_Line(j, c.shift, -1 if c.attached_h is None else c.attached_h,
-                               region.needs if region else ""))
+                               regions.pop() if len(regions) == 1 else "", derived))
         return line_ids[j]
 
     out = []

@@ -30,10 +30,12 @@ from pathlib import Path
 from typing import Any, Iterator, Sequence
 
 from elucidate.errors import InputError
-from elucidate.model import C13Signal, Formula, H1Signal, Problem, SetAside
+from elucidate.model import HETERONUCLEAR, C13Signal, Formula, H1Signal, Problem, SetAside
 from elucidate.parse.annotations import set_aside_record, set_aside_warnings
 from elucidate.parse.correlations import (
+    C13_MATCH_PPM,
     RawPeak,
+    c13_from_cross_peaks,
     correlation_table,
     inline_correlations,
     looks_like_correlation_table,
@@ -504,7 +506,14 @@ def _problem(s: _Settings) -> Problem:
             peaks, notes = _read_correlations(s.correlations[key], kind)
             raw_peaks.extend(peaks)
             warnings.extend(notes)
-    correlations, notes = match_correlations(raw_peaks, h1_signals, c13_signals)
+    c13_index = None
+    if not c13_signals and any(r.kind in HETERONUCLEAR for r in raw_peaks):
+        c13_signals, c13_index = c13_from_cross_peaks(raw_peaks)
+        warnings.append(
+            f"no 13C list given: {len(c13_signals)} 13C line(s) taken from the δC of the HSQC/HMBC cross peaks "
+            f"(δC within {C13_MATCH_PPM} ppm read as one line)"
+        )
+    correlations, notes = match_correlations(raw_peaks, h1_signals, c13_signals, c13_index)
     warnings.extend(notes)
     return Problem(
         formula=formula,

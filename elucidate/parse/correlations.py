@@ -21,6 +21,9 @@ shift to the :attr:`Problem.h1` signal whose range (or centre) it lies within
 :data:`C13_MATCH_PPM`.  A shift that matches no signal, or more than one, is
 a warning naming the peak; the peak is kept (shown) but used in no
 constraint.
+
+Without a 13C list, the δC of the HSQC/HMBC cross peaks supply the 13C lines
+(:func:`c13_from_cross_peaks`), with a warning saying so.
 """
 
 from __future__ import annotations
@@ -48,6 +51,9 @@ __all__ = [
     "inline_correlations",
     "looks_like_correlation_table",
     "match_correlations",
+    "FROM_CROSS_PEAKS",
+    "c13_from_cross_peaks",
+    "is_from_cross_peaks",
 ]
 
 #: A 1H shift of a cross peak matches a signal within this many ppm of its
@@ -347,12 +353,64 @@ def _c13_matches(shift: float, c13: Sequence[C13Signal]) -> list[int]:
     return [i for i, c in enumerate(c13) if abs(c.shift - shift) <= C13_MATCH_PPM + 1e-9]
 
 
+#: Text of a 13C line taken from the cross peaks when no 13C list is given.
+FROM_CROSS_PEAKS = "from the HSQC/HMBC cross peaks"
+
+
+def c13_from_cross_peaks(raws: Sequence[RawPeak]) -> tuple[tuple[C13Signal, ...], dict[float, int]]:
+    """13C lines read off the δC axis of HSQC/HMBC cross peaks (no 13C list given).
+
+    The distinct δC values are grouped by single linkage within
+    :data:`C13_MATCH_PPM`: two cross peaks whose δC differ by no more than the
+    matching tolerance may be the same carbon, so they make one line (at the
+    mean of its distinct values).  Lines are therefore at least that far
+    apart, and only then are taken as different carbons; carbons closer than
+    that show as one line (a weaker, never a wrong, reading).
+
+    Returns
+    -------
+    lines : tuple of C13Signal
+        High to low, ``text`` ending in :data:`FROM_CROSS_PEAKS`.
+    index : dict
+        Each δC value read -> the index of its line.
+
+    Examples
+    --------
+    >>> lines, index = c13_from_cross_peaks([RawPeak("HSQC", 7.28, 128.5), RawPeak("HMBC", 2.14, 207.9),
+    ...                                      RawPeak("HMBC", 7.19, 128.3), RawPeak("HSQC", 2.14, 30.1)])
+    >>> [c.shift for c in lines], index[128.3]
+    ([207.9, 128.4, 30.1], 1)
+    """
+    values = sorted({r.shift2 for r in raws if r.kind in HETERONUCLEAR}, reverse=True)
+    groups: list[list[float]] = []
+    for v in values:
+        if groups and groups[-1][-1] - v <= C13_MATCH_PPM + 1e-9:
+            groups[-1].append(v)
+        else:
+            groups.append([v])
+    lines = []
+    index: dict[float, int] = {}
+    for i, g in enumerate(groups):
+        centre = round(sum(g) / len(g), 1)
+        span = f"{g[-1]:.1f}-{g[0]:.1f}" if len(g) > 1 else f"{g[0]:.1f}"
+        lines.append(C13Signal(centre, 1, None, f"{span} ({FROM_CROSS_PEAKS})"))
+        for v in g:
+            index[v] = i
+    return tuple(lines), index
+
+
+def is_from_cross_peaks(line: C13Signal) -> bool:
+    """Whether a 13C line was read off the cross peaks (:func:`c13_from_cross_peaks`)."""
+    return line.text.endswith(f"({FROM_CROSS_PEAKS})")
+
+
 def _describe(indices: list[int], shifts: list[float], digits: int) -> str:
     return ", ".join(f"{shifts[i]:.{digits}f}" for i in indices)
 
 
 def match_correlations(
-    raws: Sequence[RawPeak], h1: Sequence[H1Signal], c13: Sequence[C13Signal]
+    raws: Sequence[RawPeak], h1: Sequence[H1Signal], c13: Sequence[C13Signal],
+    c13_index: dict[float, int] | None = None,
 ) -> tuple[tuple[CrossPeak, ...], list[str]]:
     """Match each cross peak's shifts to the 1D signals.
 
@@ -363,6 +421,10 @@ def match_correlations(
     warnings : list of str
         One per shift that matches no signal or several, and per COSY/NOESY
         peak on the diagonal (both shifts in one signal).
+
+    When ``c13`` was read off the cross peaks themselves
+    (:func:`c13_from_cross_peaks`), ``c13_index`` maps each δC to its line
+    and takes the place of the tolerance.
 
     Examples
     --------
@@ -383,7 +445,10 @@ def match_correlations(
         probe = CrossPeak(raw.kind, raw.shift1, raw.shift2)
         name = probe.label + (f" ({raw.where})" if raw.where else "")
         first = _h1_matches(raw.shift1, h1)
-        second = _c13_matches(raw.shift2, c13) if hetero else _h1_matches(raw.shift2, h1)
+        if hetero and c13_index is not None:
+            second = [c13_index[raw.shift2]] if raw.shift2 in c13_index else []
+        else:
+            second = _c13_matches(raw.shift2, c13) if hetero else _h1_matches(raw.shift2, h1)
         s1 = first[0] if len(first) == 1 else None
         s2 = second[0] if len(second) == 1 else None
         issues = []

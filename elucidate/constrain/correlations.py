@@ -26,9 +26,14 @@ each in the shift region of its line (``data/c13_regions.csv``: a line
 above 166 ppm is a C=O or C=N carbon, ...).  A
 cross peak marked weak (``w``, ``weak``) may be one bond longer (4J).
 
-The first relaxation (``long_range=True``, tier 2) admits 4-bond COSY and
-HMBC correlations (heavy-atom distance 2 and 3), HMBC peaks of the H's own
-carbon, and reads every signal and line as a possible overlap.
+The first relaxation (``long_range=True``) admits 4-bond COSY and HMBC
+correlations (heavy-atom distance 2 and 3), HMBC peaks of the H's own
+carbon, and reads every signal and line as a possible overlap.  The later
+steps drop the correlations one class at a time, least certain first: the
+long-range reading of all peaks has tier 1 (dropped with the 13C shift
+rules), and a long-range reading of the HSQC and COSY peaks alone tier 2
+(dropped with the hard fragments).  So the ladder is: 2-3 bonds -> 4J
+admitted -> without HMBC -> without 2D, each step listed in ``relaxed``.
 
 Symmetry classes are colour-refinement classes of the heavy-atom graph
 (element, H count, degree; bond orders ignored, so Kekulé structures do not
@@ -195,10 +200,13 @@ class Correlations(Evidence):
     peaks: tuple[_Peak, ...] = ()
     long_range: bool = False
     n_carbons: int = 0  # carbons in the formula (for group_bounds)
+    drop_tier: int = 2  # tier of a long-range reading (1: with HMBC, 2: HSQC/COSY only)
 
     @property
     def key(self) -> str:  # type: ignore[override]
-        return "2d-long-range" if self.long_range else "2d"
+        if not self.long_range:
+            return "2d"
+        return "2d-long-range" if self.drop_tier == 1 else "2d-hsqc-cosy"
 
     @property
     def title(self) -> str:  # type: ignore[override]
@@ -208,12 +216,16 @@ class Correlations(Evidence):
 
     @property
     def tier(self) -> int:  # type: ignore[override]
-        return 2 if self.long_range else 0
+        return self.drop_tier if self.long_range else 0
 
     @property
     def relaxation(self) -> str:  # type: ignore[override]
         if self.long_range:
-            return "2D correlations"
+            kinds = "/".join(k for k in ("HSQC", "COSY", "HMBC") if any(p.kind == k for p in self.peaks))
+            if self.drop_tier == 1:
+                rest = "/".join(k for k in ("HSQC", "COSY") if any(p.kind == k for p in self.peaks))
+                return "the HMBC cross peaks" + (f" (the least certain class; {rest} still hard)" if rest else "")
+            return f"the {kinds} cross peaks"
         return "the 2-3-bond reading of the 2D correlations (first-order signals one environment)"
 
     def describe(self) -> str:
@@ -569,8 +581,13 @@ def _or(items: list[str]) -> str:
 
 
 def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
-    """The strict and the long-range reading of the problem's matched
-    HSQC/COSY/HMBC cross peaks (empty when there are none)."""
+    """The readings of the problem's matched HSQC/COSY/HMBC cross peaks,
+    strictest first (empty when there are none).
+
+    The strict reading (tier 0); the long-range reading of every peak
+    (tier 1, when there are HMBC peaks); the long-range reading of the HSQC
+    and COSY peaks alone (tier 2, when there are any).
+    """
     peaks = [c for c in problem.correlations if c.matched and c.kind in ("HSQC", "COSY", "HMBC")]
     if not peaks:
         return ()
@@ -608,5 +625,11 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         out.append(_Peak(c.kind, a, b, c.intensity in _WEAK, c.label))
     common = (tuple(signals), tuple(lines), tuple(out))
     n_c = problem.formula["C"]
-    return (Correlations(*common, long_range=False, n_carbons=n_c),
-            Correlations(*common, long_range=True, n_carbons=n_c))
+    found = [Correlations(*common, long_range=False, n_carbons=n_c)]
+    near = tuple(p for p in out if p.kind != "HMBC")
+    if len(near) < len(out):  # HMBC present: the long-range reading of all, then without HMBC
+        found.append(Correlations(*common, long_range=True, n_carbons=n_c, drop_tier=1))
+    if near:
+        found.append(Correlations(tuple(signals), tuple(lines), near, long_range=True, n_carbons=n_c,
+                                  drop_tier=2))
+    return tuple(found)

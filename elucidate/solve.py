@@ -616,6 +616,10 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
     if entry.level > 0:
         notes.append(f"found only after relaxing: {LEVELS[entry.level].relaxation}")
     verdict = entry.fit.verdict if entry.fit else "poor fit"
+    rows: tuple = ()
+    if any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):
+        graph = Graph.from_smiles(entry.smiles)
+        rows = tuple(row for e in run.evidence for row in e.check_rows(graph))
     return Candidate(
         rank=rank,
         smiles=entry.smiles,
@@ -625,6 +629,7 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
         notes=tuple(notes),
         prediction=entry.prediction,
         c13_assignments=entry.fit.c13_assignments if entry.fit else (),
+        checks=rows,
     )
 
 

@@ -57,7 +57,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from elucidate.constrain.evidence import _NEEDS, Evidence, Graph, carbon_regions
-from elucidate.model import Problem
+from elucidate.model import CheckRow, Problem
 from elucidate.parse.correlations import is_from_cross_peaks
 
 __all__ = ["MAX_NODES", "Correlations", "correlation_evidence", "signal_totals"]
@@ -355,8 +355,9 @@ class Correlations(Evidence):
         return _View(graph, 3 if self.long_range or any(p.weak for p in self.peaks) else 2)
 
     @functools.lru_cache(maxsize=64)  # noqa: B019 - few objects, small models
-    def _model(self, chosen: tuple[int, ...]) -> tuple[tuple[_Var, ...], tuple[tuple[int, int, int, int], ...]]:
-        """Witness variables and distance constraints (u, v, dmin, dmax) for a set of peaks."""
+    def _model(self, chosen: tuple[int, ...]) -> tuple[tuple[_Var, ...], tuple[tuple[int, int, int, int], ...], tuple]:
+        """Witness variables, distance constraints (u, v, dmin, dmax) and the
+        variables' keys for a set of peaks."""
         vars_: list[_Var] = []
         index: dict[tuple, int] = {}
         cons: list[tuple[int, int, int, int]] = []
@@ -389,18 +390,97 @@ class Correlations(Evidence):
                 u = var(("h", p, 0), _Var((peak.a,), -1, False))
                 v = var(("c", p), _Var((), peak.b, True))
                 cons.append((u, v, 0 if self.long_range else 1, 2 + longer))
-        return tuple(vars_), tuple(cons)
+        return tuple(vars_), tuple(cons), tuple(index)
 
     def _feasible(self, graph: Graph, model: tuple, view: _View | None = None) -> bool | None:
         """True / False, or None when the step cap was hit (undecided: admit)."""
-        vars_, cons = model
+        return self._solve(graph, model, view)[0]
+
+    def _solve(self, graph: Graph, model: tuple, view: _View | None = None) -> tuple[bool | None, dict]:
+        """(feasible, witness): the witness maps each variable key to its atom."""
+        vars_, cons, keys = model
         if not vars_:
-            return True
+            return True, {}
         view = view or self._view(graph)
+        search = _Search(self, view, vars_, cons)
         try:
-            return _Search(self, view, vars_, cons).run()
+            ok = search.run()
         except _Cap:
-            return None
+            return None, {}
+        return ok, (dict(zip(keys, search.assign)) if ok else {})
+
+    # ------------------------------------------------------------ per candidate
+
+    def check_rows(self, graph: Graph) -> tuple[CheckRow, ...]:
+        """Each cross peak on one structure: met, met only in the long-range
+        reading, or not met (with the reason).
+
+        When all peaks hold together in the strict reading they are all met,
+        with the atoms of one assignment meeting them all.  Otherwise the
+        peaks are taken in the order given: a peak is met when it holds
+        together with the peaks met before it (so a set that cannot hold at
+        once shows its later members as not met), met (long-range) when it
+        holds with them in the widened reading.  Only the strict reading
+        reports, once for all readings.
+
+        >>> from elucidate.parse import load_problem
+        >>> p = load_problem(formula="C4H8O2", h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)",
+        ...                  c13="171.1, 60.4, 21.0, 14.2", cosy="4.12/1.26", hmbc="2.05/171.1, 1.26/171.1")
+        >>> [(r.label, r.status, r.atoms) for r in correlation_evidence(p)[0].check_rows(Graph.from_smiles("CCOC(C)=O"))]
+        [('COSY 4.12/1.26', 'met', (1, 0)), ('HMBC 2.05/171.1', 'met', (4, 3)), ('HMBC 1.26/171.1', 'met (4 bonds)', (0, 3))]
+        """
+        if self.long_range:
+            return ()
+        view = self._view(graph)
+        everything = tuple(range(len(self.peaks)))
+        ok, joint = self._solve(graph, self._model(everything), view)
+        if ok is not False:
+            return tuple(CheckRow(self.peaks[p].kind, self.peaks[p].label, "met", self._atoms(p, joint))
+                         for p in everything)
+        wide = Correlations(self.signals, self.lines, self.peaks, long_range=True, n_carbons=self.n_carbons)
+        wide_view = wide._view(graph)
+        # the strict reading with every COSY/HMBC peak one bond longer (as if marked weak)
+        four_j = Correlations(self.signals, self.lines, tuple(_Peak(q.kind, q.a, q.b, True, q.label) for q in self.peaks),
+                              long_range=False, n_carbons=self.n_carbons)
+        four_view = four_j._view(graph)
+        kept: list[int] = []
+        status: dict[int, str] = {}
+        for p in everything:
+            if self._solve(graph, self._model(tuple(kept + [p])), view)[0] is not False:
+                kept.append(p)
+                status[p] = "met"
+        _, witness = self._solve(graph, self._model(tuple(kept)), view)
+        rows = []
+        for p in everything:
+            peak = self.peaks[p]
+            if p in status:
+                rows.append(CheckRow(peak.kind, peak.label, "met", self._atoms(p, witness)))
+                continue
+            four, four_witness = four_j._solve(graph, four_j._model(tuple(kept + [p])), four_view)
+            if four is not False and peak.kind != "HSQC":
+                rows.append(CheckRow(peak.kind, peak.label, "met (4 bonds)", four_j._atoms(p, four_witness)))
+                continue
+            far, wide_witness = wide._solve(graph, wide._model(tuple(kept + [p])), wide_view)
+            if far is not False:
+                rows.append(CheckRow(peak.kind, peak.label, "met (long-range)", wide._atoms(p, wide_witness)))
+                continue
+            alone = wide._solve(graph, wide._model((p,)), wide_view)[0] is not False
+            why = (f"{peak.label} cannot hold together with the cross peaks met before it" if alone
+                   else wide._alone(peak))
+            rows.append(CheckRow(peak.kind, peak.label, "not met", (), why))
+        return tuple(rows)
+
+    def _atoms(self, p: int, witness: dict) -> tuple[int, ...]:
+        """The witness atoms of peak ``p`` (see :class:`~elucidate.model.CheckRow`)."""
+        peak = self.peaks[p]
+        if peak.kind == "HSQC":
+            atom = witness.get(("hsqc", peak.b), witness.get(("hsqc", peak.b, peak.a)))
+            return () if atom is None else (atom,)
+        if peak.kind == "COSY":
+            got = (witness.get(("h", p, 0)), witness.get(("h", p, 1)))
+        else:
+            got = (witness.get(("h", p, 0)), witness.get(("c", p)))
+        return () if None in got else got  # type: ignore[return-value]
 
 
 class _Search:

@@ -618,7 +618,8 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
     verdict = entry.fit.verdict if entry.fit else "poor fit"
     rows: tuple = ()
     if any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):
-        graph = Graph.from_smiles(entry.smiles)
+        # atom indices as in the drawing (the prediction's SMILES when there is one)
+        graph = Graph.from_smiles(entry.prediction.smiles if entry.prediction is not None else entry.smiles)
         rows = tuple(row for e in run.evidence for row in e.check_rows(graph))
     return Candidate(
         rank=rank,

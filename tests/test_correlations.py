@@ -199,7 +199,9 @@ def test_cli_read_shows_correlations() -> None:
 
 
 def test_doctests() -> None:
-    for module in (parse_mod, corr_mod):
+    from elucidate.report import correlations as report_mod
+
+    for module in (parse_mod, corr_mod, report_mod):
         failed, _ = doctest.testmod(module)
         assert failed == 0
 
@@ -415,3 +417,83 @@ def test_explain_names_the_cross_peak() -> None:
     e = explain(load_problem(**PRACE, cosy="4.02/1.64, 1.64/0.94"), "CCOC(=O)CC", time_limit_s=60)
     assert e.verdict == "rejected"
     assert any(r.startswith("COSY 4.02/1.64 needs") for r in e.reasons)
+
+
+# --- per-candidate status and the reports -----------------------------------------
+
+BUBZ = dict(
+    # butyl benzoate, from memory (literature spectrum, CDCl3); cross peaks implied by the
+    # structure (common practice: HSQC one bond, COSY vicinal, HMBC 2J/3J), 1.75/166.7 a 4J peak
+    formula="C11H14O2",
+    h1="8.04 (d, J = 7.6 Hz, 2H), 7.54 (t, J = 7.4 Hz, 1H), 7.43 (t, J = 7.6 Hz, 2H), 4.32 (t, J = 6.6 Hz, 2H), "
+    "1.75 (quint, J = 6.8 Hz, 2H), 1.48 (sext, J = 7.4 Hz, 2H), 0.98 (t, J = 7.4 Hz, 3H)",
+    c13="166.7, 132.8, 130.5, 129.5, 128.3, 64.8, 30.8, 19.3, 13.8",
+    hsqc="8.04/129.5, 4.32/64.8, 1.75/30.8, 1.48/19.3, 0.98/13.8",
+    cosy="4.32/1.75, 1.75/1.48, 1.48/0.98",
+    hmbc="8.04/166.7, 4.32/166.7, 1.75/166.7",
+)
+
+
+def test_check_rows_name_the_atoms_and_the_4j_peak() -> None:
+    p = load_problem(**BUBZ)
+    rows = strict_of(p).check_rows(Graph.from_smiles("CCCCOC(=O)c1ccccc1"))
+    status = {r.label: (r.status, r.atoms) for r in rows}
+    # atoms in SMILES order: 0-3 butyl C (3 = OCH2), 4 O, 5 C=O carbon, 6 its O, 7 ipso, 8 and 12 ortho CH
+    assert status["COSY 4.32/1.75"] == ("met", (3, 2))
+    assert status["HMBC 4.32/166.7"] == ("met", (3, 5))
+    assert status["HMBC 1.75/166.7"] == ("met (4 bonds)", (2, 5))
+    assert status["HSQC 8.04/129.5"][0] == "met" and status["HSQC 8.04/129.5"][1] in ((8,), (12,))
+    # the ester the other way round, phenyl pentanoate: the peaks cannot all hold in the
+    # 2-3-bond reading, so some are met only 4 bonds away or in the widened reading
+    other = strict_of(p).check_rows(Graph.from_smiles("CCCCC(=O)Oc1ccccc1"))
+    assert {r.status for r in other} >= {"met", "met (4 bonds)", "met (long-range)"}
+
+
+def test_solve_json_terminal_and_html_show_the_cross_peaks(tmp_path: Path) -> None:
+    from elucidate.report import render_html
+    from elucidate.report.terminal import solve_lines
+    from elucidate.solve import solve
+
+    result = solve(load_problem(**BUBZ), time_limit_s=60)
+    best = result.candidates[0]
+    assert best.smiles == "CCCCOC(=O)c1ccccc1"
+    js = best.to_json()["correlations"]
+    assert [r["label"] for r in js][:2] == ["HSQC 8.04/129.5", "HSQC 4.32/64.8"]
+    assert all(r["status"].startswith("met") for r in js)
+    text = "\n".join(solve_lines(result))
+    assert "2D cross peaks on the best candidates" in text
+    assert "HMBC 1.75/166.7  met, 4 bonds" in text
+    page = render_html(result)
+    assert "<h2>2D cross peaks</h2>" in page
+    assert 'aria-label="2D correlations on candidate 1"' in page
+    assert page == render_html(result)  # same input, same bytes
+
+
+def test_a_wrong_peak_is_never_lost_silently() -> None:
+    # butyl benzoate (BUBZ) with a deliberately wrong HMBC peak: the CH3 H at 0.98 to the
+    # C=O (six bonds). The strict reading rejects the truth; either it is found after a
+    # relaxation listed in relaxed, or the output names the peak no candidate meets
+    from elucidate.report.correlations import unmet_by_all
+    from elucidate.report.terminal import solve_lines
+    from elucidate.solve import solve
+
+    result = solve(load_problem(**{**BUBZ, "hmbc": "8.04/166.7, 0.98/166.7, 1.75/166.7"}), time_limit_s=60)
+    assert correlation_evidence(result.problem)[0].reason(Graph.from_smiles("CCCCOC(=O)c1ccccc1")) is not None
+    found = "CCCCOC(=O)c1ccccc1" in [c.smiles for c in result.candidates]
+    assert (found and result.relaxed) or "HMBC 0.98/166.7" in unmet_by_all(result)
+    if "HMBC 0.98/166.7" in unmet_by_all(result):
+        assert "no candidate meets HMBC 0.98/166.7" in "\n".join(solve_lines(result))
+
+
+def test_terminal_names_the_peak_no_candidate_meets() -> None:
+    # two candidates that both fail one COSY peak (statuses made by hand to test the wording)
+    from elucidate.model import Candidate, CheckRow, SolveResult
+    from elucidate.report.terminal import solve_lines
+
+    rows = (CheckRow("COSY", "COSY 4.12/1.26", "met", (1, 0)),
+            CheckRow("COSY", "COSY 4.12/2.05", "not met", (), "COSY 4.12/2.05 needs ..."))
+    cands = tuple(Candidate(i, smi, float(i), "consistent", (), checks=rows)
+                  for i, smi in ((1, "CCOC(C)=O"), (2, "CCC(=O)OC")))
+    text = "\n".join(solve_lines(SolveResult(load_problem(**ETOAC), True, cands)))
+    assert "COSY 4.12/2.05  NOT MET  NOT MET" in text
+    assert "no candidate meets COSY 4.12/2.05: check this cross peak" in text

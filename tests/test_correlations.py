@@ -10,6 +10,7 @@ experiments (common practice: HSQC one bond, COSY vicinal 3J H-H, HMBC 2J and
 from __future__ import annotations
 
 import doctest
+import re
 import json
 from itertools import combinations
 from pathlib import Path
@@ -497,3 +498,61 @@ def test_terminal_names_the_peak_no_candidate_meets() -> None:
     text = "\n".join(solve_lines(SolveResult(load_problem(**ETOAC), True, cands)))
     assert "COSY 4.12/2.05  NOT MET  NOT MET" in text
     assert "no candidate meets COSY 4.12/2.05: check this cross peak" in text
+
+
+# --- JCAMP-DX 2D peak tables and read-back without a 13C list ---------------------
+
+# methyl propanoate HSQC as a JCAMP-DX 2D peak table (F2 = 1H, F1 = 13C; the layout of the
+# JCAMP-DX NMR conventions, common practice); shifts from MEPROP (from memory)
+HSQC_JDX = """##TITLE=methyl propanoate HSQC
+##JCAMP-DX=6.0
+##DATA TYPE=NMR PEAK TABLE
+##NUM DIM=2
+##.NUCLEUS=1H,13C
+##PEAK TABLE=(F2,F1,Y..F2,F1,Y)
+3.67, 51.6, 100
+2.32, 27.5, 90
+1.14, 9.2, 95
+##END=
+"""
+
+
+def test_jcamp_2d_peak_table(tmp_path: Path) -> None:
+    (tmp_path / "hsqc.jdx").write_text(HSQC_JDX)
+    p = load_problem(**MEPROP, hsqc=f"@{tmp_path / 'hsqc.jdx'}")
+    assert [(c.label, c.signal1, c.signal2) for c in p.correlations] == [
+        ("HSQC 3.67/51.6", 0, 1), ("HSQC 2.32/27.5", 1, 2), ("HSQC 1.14/9.2", 2, 3)]
+    # F1 listed first is read in its own order
+    (tmp_path / "swapped.jdx").write_text(HSQC_JDX.replace("(F2,F1,Y..F2,F1,Y)", "(F1,F2,Y..F1,F2,Y)")
+                                          .replace("3.67, 51.6", "51.6, 3.67").replace("2.32, 27.5", "27.5, 2.32")
+                                          .replace("1.14, 9.2", "9.2, 1.14"))
+    q = load_problem(**MEPROP, hsqc=f"@{tmp_path / 'swapped.jdx'}")
+    assert q.correlations[0].label == "HSQC 3.67/51.6"
+
+
+@pytest.mark.parametrize("text, message", [
+    # a 1D peak table is not a 2D list
+    ("##TITLE=x\n##JCAMP-DX=5.01\n##DATA TYPE=NMR SPECTRUM\n##PEAK TABLE=(XY..XY)\n3.67, 3\n##END=\n",
+     "JCAMP-DX file without a 2D peak table"),
+    (HSQC_JDX.replace("##NUM DIM=2\n", "##NUM DIM=2\n##UNITS=HZ, HZ\n"), "in Hz; give the shifts in ppm"),
+    (HSQC_JDX.replace("(F2,F1,Y..F2,F1,Y)", "(A,B..A,B)"), "does not name its two shift axes"),
+    (HSQC_JDX.replace("2.32, 27.5", "2.32, x"), "hsqc.jdx line 8"),
+])
+def test_jcamp_2d_refusals_are_one_line(tmp_path: Path, text: str, message: str) -> None:
+    (tmp_path / "hsqc.jdx").write_text(text)
+    with pytest.raises(InputError, match=re.escape(message)):
+        load_problem(**MEPROP, hsqc=f"@{tmp_path / 'hsqc.jdx'}")
+    runner = CliRunner()
+    out = runner.invoke(app, ["read", "--formula", MEPROP["formula"], "--h1", MEPROP["h1"],
+                              "--hsqc", f"@{tmp_path / 'hsqc.jdx'}"])
+    assert out.exit_code == 2 and "Traceback" not in out.output
+
+
+def test_cli_read_without_13c_list_shows_the_lines_from_the_cross_peaks() -> None:
+    runner = CliRunner()
+    out = runner.invoke(app, ["read", "--formula", MEPROP["formula"], "--h1", MEPROP["h1"],
+                              "--hsqc", "3.67/51.6, 2.32/27.5, 1.14/9.2", "--hmbc", "3.67/174.9, 1.14/174.9"])
+    assert out.exit_code == 0, out.output
+    assert "5  HMBC  1.14/174.9  1H #3 (1.14)  13C #1 (174.9)  constraint" in out.output
+    assert "no 13C list given: 4 13C line(s) taken from" in out.output
+    assert "13C signals  4, 4 C (formula 4 C); read off the HSQC/HMBC cross peaks" in out.output

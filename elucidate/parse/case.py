@@ -38,6 +38,7 @@ from elucidate.parse.correlations import (
     c13_from_cross_peaks,
     correlation_table,
     inline_correlations,
+    jcamp_cross_peaks,
     looks_like_correlation_table,
     match_correlations,
     read_correlation_text,
@@ -541,6 +542,8 @@ def _read_correlations(source: _Source, kind: str) -> tuple[list[RawPeak], list[
         if not path.is_absolute():
             path = source.base / path
         text = _read_text(path, f"{kind} file")
+        if looks_like_jcamp(text):
+            return jcamp_cross_peaks(text, path.name, kind), []
         if path.suffix.lower() in _TABLE_SUFFIXES or looks_like_correlation_table(text, kind):
             return correlation_table(text, path.name, kind)
         return read_correlation_text(text, kind, path.name), []

@@ -13,7 +13,9 @@ experiments (``"7.26/128.5"``), two 1H shifts for COSY and NOESY
   ``dH1``/``dH2``, ``F2``/``F1``) for COSY/NOESY, optional ``intensity`` and
   ``note``;
 * inline TOML rows: ``[{dH = 3.67, dC = 174.8, note = "OCH3 to C=O"}]``,
-  or a list of ``"dH/dC"`` strings or ``[dH, dC]`` pairs.
+  or a list of ``"dH/dC"`` strings or ``[dH, dC]`` pairs;
+* a JCAMP-DX file carrying a 2D peak table (:func:`jcamp_cross_peaks`);
+  any other JCAMP-DX file is refused in one line.
 
 Each shift is matched to the 1D signals (:func:`match_correlations`): a 1H
 shift to the :attr:`Problem.h1` signal whose range (or centre) it lies within
@@ -54,6 +56,7 @@ __all__ = [
     "FROM_CROSS_PEAKS",
     "c13_from_cross_peaks",
     "is_from_cross_peaks",
+    "jcamp_cross_peaks",
 ]
 
 #: A 1H shift of a cross peak matches a signal within this many ppm of its
@@ -485,3 +488,72 @@ def match_correlations(
             f"{no_c13} HSQC/HMBC cross peak(s) cannot be matched: no 13C list given (use --c13 or 'c13 =')"
         )
     return tuple(out), warnings
+
+
+# ----------------------------------------------------------------- JCAMP-DX
+
+_AXES = {"F2": "direct", "X": "direct", "F1": "indirect", "Y": "indirect"}
+
+
+def jcamp_cross_peaks(text: str, name: str, kind: str) -> list[RawPeak]:
+    r"""Cross peaks from a JCAMP-DX file that carries a 2D peak table.
+
+    Read: a block with ``##NUM DIM=2`` (or a ``##DATA TYPE=`` naming a 2D
+    experiment) and ``##PEAK TABLE=(F2,F1,Y..F2,F1,Y)`` -- the direct (1H)
+    axis F2, the indirect axis F1 (13C for HSQC/HMBC, 1H for COSY/NOESY),
+    then an optional intensity; ``(F1,F2,...)`` is read in its own order and
+    ``(XY..XY)``/``(XYZ..XYZ)`` as X = F2, Y = F1 (JCAMP-DX NMR
+    conventions, common practice).  Shifts must be in ppm.  Any other
+    JCAMP-DX file (a 1D peak table, a 2D data matrix) is refused with one
+    line.
+
+    Examples
+    --------
+    >>> doc = "##TITLE=HSQC\n##JCAMP-DX=6.0\n##DATA TYPE=NMR PEAK TABLE\n##NUM DIM=2\n" \
+    ...       "##PEAK TABLE=(F2,F1,Y..F2,F1,Y)\n4.12, 60.5, 100\n1.26, 14.2, 80\n##END="
+    >>> [(p.shift1, p.shift2) for p in jcamp_cross_peaks(doc, "hsqc.jdx", "HSQC")]
+    [(4.12, 60.5), (1.26, 14.2)]
+    """
+    from elucidate.parse.jcamp import _blocks, _clean, _lines, _records
+
+    for block in _blocks(_records(text, name)):
+        header = {label: (value, line) for label, value, line in block}
+        dims = _clean(header.get("NUMDIM", ("", 0))[0])
+        datatype = _clean(header.get("DATATYPE", ("", 0))[0]).upper()
+        two_d = dims == "2" or any(k in datatype for k in ("2D", "HSQC", "HMQC", "HMBC", "COSY", "NOESY"))
+        if not two_d or "PEAKTABLE" not in header:
+            continue
+        value, line = header["PEAKTABLE"]
+        first, *rows = _lines(value, line)
+        symbols = re.findall(r"F1|F2|[A-Z]", re.sub(r"\.\..*", "", first[1].upper()))
+        axes = [_AXES.get(sym) for sym in symbols[:2]]
+        if sorted(a for a in axes if a) != ["direct", "indirect"]:
+            raise InputError(f"{name} line {line}: 2D peak table '{short(first[1])}' does not name its two "
+                             "shift axes (expected (F2,F1,Y..F2,F1,Y))")
+        for key in ("UNITS", "XUNITS", "F1UNITS", "F2UNITS"):
+            if key in header and "HZ" in _clean(header[key][0]).upper():
+                raise InputError(f"{name} line {header[key][1]}: 2D peak table in Hz; give the shifts in ppm")
+        direct = axes.index("direct")
+        peaks = []
+        for n, row in rows:
+            cells = [c for c in re.split(r"[,;\s]+", row.strip()) if c]
+            if not cells:
+                continue
+            where = f"{name} line {n}"
+            if len(cells) < 2:
+                raise InputError(f"{where}: '{short(row)}' needs two shifts")
+            a = to_float(cells[direct], "1H shift", where)
+            b = to_float(cells[1 - direct], "13C shift" if kind in HETERONUCLEAR else "1H shift", where)
+            a, b = _checked(kind, a, b, where)
+            intensity = cells[2] if len(cells) > 2 else ""
+            peaks.append(RawPeak(kind, a, b, "", "", where) if not intensity else
+                         RawPeak(kind, a, b, "", f"intensity {intensity}", where))
+        if not peaks:
+            raise InputError(f"{name}: the 2D peak table has no rows")
+        if len(peaks) > MAX_CROSS_PEAKS:
+            raise InputError(f"{name}: {len(peaks)} cross peaks, more than {MAX_CROSS_PEAKS}")
+        return peaks
+    raise InputError(
+        f"{name}: JCAMP-DX file without a 2D peak table (##NUM DIM=2 and ##PEAK TABLE=(F2,F1,Y..F2,F1,Y)); "
+        f"give the {kind} cross peaks as text ({_example(kind)}, ...) or a table"
+    )

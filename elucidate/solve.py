@@ -56,6 +56,8 @@ FORMULA_ONLY_CAP = 20000
 REJECTION_EXAMPLES = 25
 #: Hypotheses left unsearched that an incomplete result names (all are counted).
 NOT_SEARCHED_SHOWN = 8
+#: Candidates (best first) whose per-item evidence status (2D cross peaks) is worked out for the report.
+CHECKED_CANDIDATES = 50
 #: Narrow and wide plausibility margins for the H-distribution hypotheses.
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
@@ -617,7 +619,7 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
         notes.append(f"found only after relaxing: {LEVELS[entry.level].relaxation}")
     verdict = entry.fit.verdict if entry.fit else "poor fit"
     rows: tuple = ()
-    if any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):
+    if rank <= CHECKED_CANDIDATES and any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):
         # atom indices as in the drawing (the prediction's SMILES when there is one)
         graph = Graph.from_smiles(entry.prediction.smiles if entry.prediction is not None else entry.smiles)
         rows = tuple(row for e in run.evidence for row in e.check_rows(graph))

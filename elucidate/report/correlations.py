@@ -83,8 +83,10 @@ def correlation_lines(result: SolveResult, *, top: int = 3) -> list[str]:
         for r in c.checks:
             if r.status == "not met" and r.reason:
                 out.append(f"#{c.rank}: {r.reason}")
+    checked = sum(1 for c in result.candidates if c.checks)
+    among = "" if checked == len(result.candidates) else f" (of the {checked} best, the ones checked)"
     for lab in unmet_by_all(result):
-        out.append(f"no candidate meets {lab}: check this cross peak (misread, or an artefact)")
+        out.append(f"no candidate{among} meets {lab}: check this cross peak (misread, or an artefact)")
     return out + _unused_lines(result.problem)
 
 

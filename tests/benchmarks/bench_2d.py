@@ -112,6 +112,7 @@ def wrong_hmbc(case: dict) -> tuple[str, str] | None:
 
 def run(case: dict, mode: str, time_limit: float) -> dict:
     from elucidate.parse import load_problem
+    from elucidate.report.correlations import unmet_by_all
     from elucidate.solve import solve
 
     extra = {k: case[k] for k in ("hsqc", "cosy", "hmbc") if case.get(k)} if mode != "1D" else {}
@@ -128,8 +129,7 @@ def run(case: dict, mode: str, time_limit: float) -> dict:
     truth = canonical(case["smiles"])
     rank = next((c.rank for c in result.candidates if canonical(c.smiles) == truth), None)
     counts = dict(result.counts)
-    said = bool(wrong_label) and bool(result.candidates) and all(
-        any(r.label == wrong_label and r.status == "not met" for r in c.checks) for c in result.candidates)
+    said = bool(wrong_label) and wrong_label in unmet_by_all(result)
     return dict(
         built=counts["generated"], elapsed=elapsed, complete=result.complete, rank=rank,
         ranked=len(result.candidates), relaxed=list(result.relaxed), wrong=wrong_label, said=said,

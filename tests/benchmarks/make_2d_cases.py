@@ -14,7 +14,9 @@ experiments (common practice: HSQC one bond; COSY between H on bonded atoms,
 lists the informative ones).  Which 1H signal and 13C line stand for which
 atom is the assignment elucidate's own scorer makes for the true structure
 (1D data only); it is written into the file beside each case, so a reader can
-check it.  Exchangeable H (OH, NH) get no cross peaks.
+check it.  Exchangeable H (OH, NH) get no cross peaks, nor does a 13C line
+the assignment gives two kinds of carbon (an overlap) or two 1H signals
+unless it is a CH2.
 """
 
 from __future__ import annotations
@@ -63,10 +65,24 @@ def _cross_peaks(case: dict) -> tuple[str, str, str, str] | None:
             continue
         sig_atoms.setdefault(a.signal, set()).update(env.atoms)
     line_of: dict[int, int] = {}
+    rows_per_line: dict[int, int] = {}
     for row in fit.c13_assignments:
-        if row.line is not None:
+        if row.line is not None and row.atoms:
+            rows_per_line[row.line] = rows_per_line.get(row.line, 0) + 1
             for atom in row.atoms:
                 line_of[atom] = row.line
+    # a line the assignment gives two kinds of carbon (an overlap) is ambiguous: no cross peaks to it
+    line_of = {a: line for a, line in line_of.items() if rows_per_line[line] == 1}
+    # a line bound to two 1H signals must be a CH2 seen as two H (else the assignment split an
+    # environment of equivalent groups over two lines' worth of signals): no cross peaks to it
+    signals_of_line: dict[int, set[int]] = {}
+    for s, atoms in sig_atoms.items():
+        for a in atoms:
+            if a in line_of:
+                signals_of_line.setdefault(line_of[a], set()).add(s)
+    odd = {line for line, sigs in signals_of_line.items() if len(sigs) > 1 and any(
+        mol.GetAtomWithIdx(a).GetTotalNumHs() != 2 for a, ln in line_of.items() if ln == line)}
+    line_of = {a: line for a, line in line_of.items() if line not in odd}
     dist = Chem.GetDistanceMatrix(mol)
     h1 = problem.h1
     c13 = problem.c13
@@ -77,7 +93,8 @@ def _cross_peaks(case: dict) -> tuple[str, str, str, str] | None:
     sigs = sorted(sig_atoms)
     for i, s in enumerate(sigs):
         for t in sigs[i + 1:]:
-            if any(dist[a][b] <= 1 for a in sig_atoms[s] for b in sig_atoms[t]):
+            if any(dist[a][b] == 1 or (a == b and mol.GetAtomWithIdx(a).GetTotalNumHs() == 2)
+                   for a in sig_atoms[s] for b in sig_atoms[t]):
                 cosy.append(f"{h1[s].shift:.2f}/{h1[t].shift:.2f}")
     for s in sigs:
         near: dict[int, tuple] = {}

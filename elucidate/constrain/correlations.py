@@ -60,10 +60,12 @@ from elucidate.constrain.evidence import _NEEDS, Evidence, Graph, carbon_regions
 from elucidate.model import CheckRow, Problem
 from elucidate.parse.correlations import is_from_cross_peaks
 
-__all__ = ["MAX_NODES", "Correlations", "correlation_evidence", "signal_totals"]
+__all__ = ["MAX_NODES", "CHECK_NODES", "Correlations", "correlation_evidence", "signal_totals"]
 
 #: Backtracking steps per structure before the check gives up (and admits).
 MAX_NODES = 20000
+#: Backtracking steps per search when working out each peak's status for the report.
+CHECK_NODES = 2000
 
 _GROUP = {3: "CH3", 2: "CH2", 1: "CH"}
 _WEAK = ("weak", "very weak")
@@ -276,7 +278,12 @@ class Correlations(Evidence):
     def admits_structure(self, st: Any) -> bool:
         labels = st.labels
         graph = Graph(tuple(lab.symbol for lab in labels), tuple(st.hs()), tuple(st.edges), tuple(st.orders))
-        return self._feasible(graph, self._model(tuple(range(len(self.peaks))))) is not False
+        view = self._view(graph)
+        # each peak alone first: tiny searches that turn most wrong structures down at once
+        for p in range(len(self.peaks)):
+            if self._feasible(graph, self._model((p,)), view) is False:
+                return False
+        return self._feasible(graph, self._model(tuple(range(len(self.peaks)))), view) is not False
 
     def reason(self, graph: Graph) -> str | None:
         everything = tuple(range(len(self.peaks)))
@@ -354,7 +361,7 @@ class Correlations(Evidence):
     def _view(self, graph: Graph) -> _View:
         return _View(graph, 3 if self.long_range or any(p.weak for p in self.peaks) else 2)
 
-    @functools.lru_cache(maxsize=64)  # noqa: B019 - few objects, small models
+    @functools.lru_cache(maxsize=512)  # noqa: B019 - few objects, small models
     def _model(self, chosen: tuple[int, ...]) -> tuple[tuple[_Var, ...], tuple[tuple[int, int, int, int], ...], tuple]:
         """Witness variables, distance constraints (u, v, dmin, dmax) and the
         variables' keys for a set of peaks."""
@@ -396,13 +403,14 @@ class Correlations(Evidence):
         """True / False, or None when the step cap was hit (undecided: admit)."""
         return self._solve(graph, model, view)[0]
 
-    def _solve(self, graph: Graph, model: tuple, view: _View | None = None) -> tuple[bool | None, dict]:
+    def _solve(self, graph: Graph, model: tuple, view: _View | None = None,
+               max_nodes: int = MAX_NODES) -> tuple[bool | None, dict]:
         """(feasible, witness): the witness maps each variable key to its atom."""
         vars_, cons, keys = model
         if not vars_:
             return True, {}
         view = view or self._view(graph)
-        search = _Search(self, view, vars_, cons)
+        search = _Search(self, view, vars_, cons, max_nodes)
         try:
             ok = search.run()
         except _Cap:
@@ -443,29 +451,30 @@ class Correlations(Evidence):
         four_j = Correlations(self.signals, self.lines, tuple(_Peak(q.kind, q.a, q.b, True, q.label) for q in self.peaks),
                               long_range=False, n_carbons=self.n_carbons)
         four_view = four_j._view(graph)
+        # peaks that fail alone are out at once; the rest are taken in order (searches capped at
+        # CHECK_NODES steps: an undecided search counts as met)
+        alone = {p: self._solve(graph, self._model((p,)), view)[0] is not False for p in everything}
         kept: list[int] = []
-        status: dict[int, str] = {}
         for p in everything:
-            if self._solve(graph, self._model(tuple(kept + [p])), view)[0] is not False:
+            if alone[p] and self._solve(graph, self._model(tuple(kept + [p])), view, CHECK_NODES)[0] is not False:
                 kept.append(p)
-                status[p] = "met"
-        _, witness = self._solve(graph, self._model(tuple(kept)), view)
+        _, witness = self._solve(graph, self._model(tuple(kept)), view, CHECK_NODES)
         rows = []
         for p in everything:
             peak = self.peaks[p]
-            if p in status:
+            if p in kept:
                 rows.append(CheckRow(peak.kind, peak.label, "met", self._atoms(p, witness)))
                 continue
-            four, four_witness = four_j._solve(graph, four_j._model(tuple(kept + [p])), four_view)
+            base = tuple(kept + [p]) if alone[p] else (p,)
+            four, four_witness = four_j._solve(graph, four_j._model(base), four_view, CHECK_NODES)
             if four is not False and peak.kind != "HSQC":
                 rows.append(CheckRow(peak.kind, peak.label, "met (4 bonds)", four_j._atoms(p, four_witness)))
                 continue
-            far, wide_witness = wide._solve(graph, wide._model(tuple(kept + [p])), wide_view)
+            far, wide_witness = wide._solve(graph, wide._model(base), wide_view, CHECK_NODES)
             if far is not False:
                 rows.append(CheckRow(peak.kind, peak.label, "met (long-range)", wide._atoms(p, wide_witness)))
                 continue
-            alone = wide._solve(graph, wide._model((p,)), wide_view)[0] is not False
-            why = (f"{peak.label} cannot hold together with the cross peaks met before it" if alone
+            why = (f"{peak.label} cannot hold together with the cross peaks met before it" if alone[p]
                    else wide._alone(peak))
             rows.append(CheckRow(peak.kind, peak.label, "not met", (), why))
         return tuple(rows)
@@ -484,8 +493,10 @@ class Correlations(Evidence):
 
 
 class _Search:
-    def __init__(self, ev: Correlations, view: _View, vars_: tuple[_Var, ...], cons: tuple) -> None:
+    def __init__(self, ev: Correlations, view: _View, vars_: tuple[_Var, ...], cons: tuple,
+                 max_nodes: int = MAX_NODES) -> None:
         self.ev = ev
+        self.max_nodes = max_nodes
         self.view = view
         self.vars = vars_
         self.cons_of: list[list[tuple[int, int, int]]] = [[] for _ in vars_]
@@ -627,7 +638,7 @@ class _Search:
         checks = [(self.assign[w], lo, hi) for w, lo, hi in self.cons_of[v] if self.assign[w] >= 0]
         for a in self.domains[v]:
             self.nodes += 1
-            if self.nodes > MAX_NODES:
+            if self.nodes > self.max_nodes:
                 raise _Cap
             ok = True
             for b, lo, hi in checks:
@@ -637,10 +648,23 @@ class _Search:
                     break
             if not ok:
                 continue
-            if self._add(v, a) and self._go(k + 1):
+            if self._add(v, a) and self._ahead(v) and self._go(k + 1):
                 return True
             self._remove(v, a)
         return False
+
+    def _ahead(self, v: int) -> bool:
+        """Forward check: every unplaced variable bound to ``v`` still has an
+        atom within its distance bounds of all its placed partners."""
+        for w, _, _ in self.cons_of[v]:
+            if self.assign[w] >= 0:
+                continue
+            placed = [(self.assign[u], lo, hi) for u, lo, hi in self.cons_of[w] if self.assign[u] >= 0]
+            balls = [(self.view.ball(b), lo, hi) for b, lo, hi in placed]
+            if not any(all((d := ball.get(x)) is not None and lo <= d <= hi for ball, lo, hi in balls)
+                       for x in self.domains[w]):
+                return False
+        return True
 
 
 def _dec(counter: dict[int, int], key: int) -> None:

@@ -33,6 +33,7 @@ __all__ = [
     "Prediction",
     "Assignment",
     "C13Assignment",
+    "CheckRow",
     "Candidate",
     "Rejection",
     "SolveResult",
@@ -370,6 +371,25 @@ class Assignment(_JsonMixin):
 
 
 @dataclass(frozen=True)
+class CheckRow(_JsonMixin):
+    """How one candidate meets one item of evidence (one 2D cross peak).
+
+    ``status`` is ``"met"``, ``"met (4 bonds)"`` (a 4J COSY/HMBC peak),
+    ``"met (long-range)"`` (only in the widened reading: overlapped signals,
+    any carbon) or ``"not met"``; ``atoms`` are
+    witness heavy atoms in the candidate's SMILES order (COSY: the two
+    H-bearing atoms; HMBC: the H-bearing atom, then the carbon; HSQC: the
+    carbon), empty when not met; ``reason`` says why not.
+    """
+
+    kind: str
+    label: str
+    status: str
+    atoms: tuple[int, ...] = ()
+    reason: str = ""
+
+
+@dataclass(frozen=True)
 class C13Assignment(_JsonMixin):
     """One predicted carbon class matched to one observed 13C line.
 
@@ -408,6 +428,7 @@ class Candidate(_JsonMixin):
     notes: tuple[str, ...] = ()
     prediction: Prediction | None = None
     c13_assignments: tuple[C13Assignment, ...] = ()
+    checks: tuple[CheckRow, ...] = ()  # per 2D cross peak: met / not met on this structure
 
     def to_json(self) -> dict[str, Any]:
         return {
@@ -417,6 +438,7 @@ class Candidate(_JsonMixin):
             "verdict": self.verdict,
             "assignments": [a.to_json() for a in self.assignments],
             "c13_assignments": [a.to_json() for a in self.c13_assignments],
+            "correlations": [c.to_json() for c in self.checks],
             "notes": list(self.notes),
             "prediction": self.prediction.to_json() if self.prediction else None,
         }

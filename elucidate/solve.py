@@ -59,6 +59,8 @@ FORMULA_ONLY_CAP = 20000
 REJECTION_EXAMPLES = 25
 #: Hypotheses left unsearched that an incomplete result names (all are counted).
 NOT_SEARCHED_SHOWN = 8
+#: Candidates (best first) whose per-item evidence status (2D cross peaks) is worked out for the report.
+CHECKED_CANDIDATES = 50
 #: Narrow and wide plausibility margins for the H-distribution hypotheses.
 MARGIN_STRICT = 3
 MARGIN_WIDE = 8
@@ -729,6 +731,11 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
     if entry.level > 0:
         notes.append(f"found only after relaxing: {LEVELS[entry.level].relaxation}")
     verdict = entry.fit.verdict if entry.fit else "poor fit"
+    rows: tuple = ()
+    if rank <= CHECKED_CANDIDATES and any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):
+        # atom indices as in the drawing (the prediction's SMILES when there is one)
+        graph = Graph.from_smiles(entry.prediction.smiles if entry.prediction is not None else entry.smiles)
+        rows = tuple(row for e in run.evidence for row in e.check_rows(graph))
     return Candidate(
         rank=rank,
         smiles=entry.smiles,
@@ -738,6 +745,7 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
         notes=tuple(notes),
         prediction=entry.prediction,
         c13_assignments=entry.fit.c13_assignments if entry.fit else (),
+        checks=rows,
     )
 
 

@@ -26,9 +26,14 @@ each in the shift region of its line (``data/c13_regions.csv``: a line
 above 166 ppm is a C=O or C=N carbon, ...).  A
 cross peak marked weak (``w``, ``weak``) may be one bond longer (4J).
 
-The first relaxation (``long_range=True``, tier 2) admits 4-bond COSY and
-HMBC correlations (heavy-atom distance 2 and 3), HMBC peaks of the H's own
-carbon, and reads every signal and line as a possible overlap.
+The first relaxation (``long_range=True``) admits 4-bond COSY and HMBC
+correlations (heavy-atom distance 2 and 3), HMBC peaks of the H's own
+carbon, and reads every signal and line as a possible overlap.  The later
+steps drop the correlations one class at a time, least certain first: the
+long-range reading of all peaks has tier 1 (dropped with the 13C shift
+rules), and a long-range reading of the HSQC and COSY peaks alone tier 2
+(dropped with the hard fragments).  So the ladder is: 2-3 bonds -> 4J
+admitted -> without HMBC -> without 2D, each step listed in ``relaxed``.
 
 Symmetry classes are colour-refinement classes of the heavy-atom graph
 (element, H count, degree; bond orders ignored, so Kekulé structures do not
@@ -52,12 +57,15 @@ from dataclasses import dataclass
 from typing import Any
 
 from elucidate.constrain.evidence import _NEEDS, Evidence, Graph, carbon_regions
-from elucidate.model import Problem
+from elucidate.model import CheckRow, Problem
+from elucidate.parse.correlations import is_from_cross_peaks
 
-__all__ = ["MAX_NODES", "Correlations", "correlation_evidence", "signal_totals"]
+__all__ = ["MAX_NODES", "CHECK_NODES", "Correlations", "correlation_evidence", "signal_totals"]
 
 #: Backtracking steps per structure before the check gives up (and admits).
 MAX_NODES = 20000
+#: Backtracking steps per search when working out each peak's status for the report.
+CHECK_NODES = 2000
 
 _GROUP = {3: "CH3", 2: "CH2", 1: "CH"}
 _WEAK = ("weak", "very weak")
@@ -96,6 +104,7 @@ class _Line:
     shift: float
     h: int  # DEPT attached H, -1 if not given
     need: str = ""  # what the line's 13C shift region asks of its carbon (constrain/data/c13_regions.csv)
+    derived: bool = False  # read off the cross peaks (no 13C list): may stand for several carbons
 
 
 @dataclass(frozen=True)
@@ -193,10 +202,13 @@ class Correlations(Evidence):
     peaks: tuple[_Peak, ...] = ()
     long_range: bool = False
     n_carbons: int = 0  # carbons in the formula (for group_bounds)
+    drop_tier: int = 2  # tier of a long-range reading (1: with HMBC, 2: HSQC/COSY only)
 
     @property
     def key(self) -> str:  # type: ignore[override]
-        return "2d-long-range" if self.long_range else "2d"
+        if not self.long_range:
+            return "2d"
+        return "2d-long-range" if self.drop_tier == 1 else "2d-hsqc-cosy"
 
     @property
     def title(self) -> str:  # type: ignore[override]
@@ -206,12 +218,16 @@ class Correlations(Evidence):
 
     @property
     def tier(self) -> int:  # type: ignore[override]
-        return 2 if self.long_range else 0
+        return self.drop_tier if self.long_range else 0
 
     @property
     def relaxation(self) -> str:  # type: ignore[override]
         if self.long_range:
-            return "2D correlations"
+            kinds = "/".join(k for k in ("HSQC", "COSY", "HMBC") if any(p.kind == k for p in self.peaks))
+            if self.drop_tier == 1:
+                rest = "/".join(k for k in ("HSQC", "COSY") if any(p.kind == k for p in self.peaks))
+                return "the HMBC cross peaks" + (f" (the least certain class; {rest} still hard)" if rest else "")
+            return f"the {kinds} cross peaks"
         return "the 2-3-bond reading of the 2D correlations (first-order signals one environment)"
 
     def describe(self) -> str:
@@ -247,11 +263,11 @@ class Correlations(Evidence):
                 by_line.setdefault(p.b, set()).add(p.a)
         if not by_line or self.n_carbons <= 0:
             return None
-        out = {0: (0, max(0, self.n_carbons - len(by_line)))}
+        out = {0: (0, max(0, self.n_carbons - sum(1 for line in by_line if not self.lines[line].derived)))}
         if not self.long_range:
             split = sum(
-                1 for sigs in by_line.values()
-                if len(sigs) >= 2 and all(1 in self.signals[s].totals for s in sigs)
+                1 for line, sigs in by_line.items()
+                if len(sigs) >= 2 and not self.lines[line].derived and all(1 in self.signals[s].totals for s in sigs)
             )
             if split:
                 out[2] = (split, self.n_carbons)
@@ -262,7 +278,12 @@ class Correlations(Evidence):
     def admits_structure(self, st: Any) -> bool:
         labels = st.labels
         graph = Graph(tuple(lab.symbol for lab in labels), tuple(st.hs()), tuple(st.edges), tuple(st.orders))
-        return self._feasible(graph, self._model(tuple(range(len(self.peaks))))) is not False
+        view = self._view(graph)
+        # each peak alone first: tiny searches that turn most wrong structures down at once
+        for p in range(len(self.peaks)):
+            if self._feasible(graph, self._model((p,)), view) is False:
+                return False
+        return self._feasible(graph, self._model(tuple(range(len(self.peaks)))), view) is not False
 
     def reason(self, graph: Graph) -> str | None:
         everything = tuple(range(len(self.peaks)))
@@ -340,9 +361,10 @@ class Correlations(Evidence):
     def _view(self, graph: Graph) -> _View:
         return _View(graph, 3 if self.long_range or any(p.weak for p in self.peaks) else 2)
 
-    @functools.lru_cache(maxsize=64)  # noqa: B019 - few objects, small models
-    def _model(self, chosen: tuple[int, ...]) -> tuple[tuple[_Var, ...], tuple[tuple[int, int, int, int], ...]]:
-        """Witness variables and distance constraints (u, v, dmin, dmax) for a set of peaks."""
+    @functools.lru_cache(maxsize=512)  # noqa: B019 - few objects, small models
+    def _model(self, chosen: tuple[int, ...]) -> tuple[tuple[_Var, ...], tuple[tuple[int, int, int, int], ...], tuple]:
+        """Witness variables, distance constraints (u, v, dmin, dmax) and the
+        variables' keys for a set of peaks."""
         vars_: list[_Var] = []
         index: dict[tuple, int] = {}
         cons: list[tuple[int, int, int, int]] = []
@@ -359,7 +381,7 @@ class Correlations(Evidence):
             if peak.kind == "HSQC":
                 hsqc_by_line.setdefault(peak.b, []).append(peak.a)
         for line, sigs in sorted(hsqc_by_line.items()):
-            if self.long_range:
+            if self.long_range or self.lines[line].derived:
                 for s in sorted(set(sigs)):
                     var(("hsqc", line, s), _Var((s,), line, True))
             else:  # one carbon per line: its HSQC signals share it
@@ -375,23 +397,106 @@ class Correlations(Evidence):
                 u = var(("h", p, 0), _Var((peak.a,), -1, False))
                 v = var(("c", p), _Var((), peak.b, True))
                 cons.append((u, v, 0 if self.long_range else 1, 2 + longer))
-        return tuple(vars_), tuple(cons)
+        return tuple(vars_), tuple(cons), tuple(index)
 
     def _feasible(self, graph: Graph, model: tuple, view: _View | None = None) -> bool | None:
         """True / False, or None when the step cap was hit (undecided: admit)."""
-        vars_, cons = model
+        return self._solve(graph, model, view)[0]
+
+    def _solve(self, graph: Graph, model: tuple, view: _View | None = None,
+               max_nodes: int = MAX_NODES) -> tuple[bool | None, dict]:
+        """(feasible, witness): the witness maps each variable key to its atom."""
+        vars_, cons, keys = model
         if not vars_:
-            return True
+            return True, {}
         view = view or self._view(graph)
+        search = _Search(self, view, vars_, cons, max_nodes)
         try:
-            return _Search(self, view, vars_, cons).run()
+            ok = search.run()
         except _Cap:
-            return None
+            return None, {}
+        return ok, (dict(zip(keys, search.assign)) if ok else {})
+
+    # ------------------------------------------------------------ per candidate
+
+    def check_rows(self, graph: Graph) -> tuple[CheckRow, ...]:
+        """Each cross peak on one structure: met, met only in the long-range
+        reading, or not met (with the reason).
+
+        When all peaks hold together in the strict reading they are all met,
+        with the atoms of one assignment meeting them all.  Otherwise the
+        peaks are taken in the order given: a peak is met when it holds
+        together with the peaks met before it (so a set that cannot hold at
+        once shows its later members as not met), met (long-range) when it
+        holds with them in the widened reading.  Only the strict reading
+        reports, once for all readings.
+
+        >>> from elucidate.parse import load_problem
+        >>> p = load_problem(formula="C4H8O2", h1="4.12 (q, J = 7.1 Hz, 2H), 2.05 (s, 3H), 1.26 (t, J = 7.1 Hz, 3H)",
+        ...                  c13="171.1, 60.4, 21.0, 14.2", cosy="4.12/1.26", hmbc="2.05/171.1, 1.26/171.1")
+        >>> [(r.label, r.status, r.atoms) for r in correlation_evidence(p)[0].check_rows(Graph.from_smiles("CCOC(C)=O"))]
+        [('COSY 4.12/1.26', 'met', (1, 0)), ('HMBC 2.05/171.1', 'met', (4, 3)), ('HMBC 1.26/171.1', 'met (4 bonds)', (0, 3))]
+        """
+        if self.long_range:
+            return ()
+        view = self._view(graph)
+        everything = tuple(range(len(self.peaks)))
+        ok, joint = self._solve(graph, self._model(everything), view)
+        if ok is not False:
+            return tuple(CheckRow(self.peaks[p].kind, self.peaks[p].label, "met", self._atoms(p, joint))
+                         for p in everything)
+        wide = Correlations(self.signals, self.lines, self.peaks, long_range=True, n_carbons=self.n_carbons)
+        wide_view = wide._view(graph)
+        # the strict reading with every COSY/HMBC peak one bond longer (as if marked weak)
+        four_j = Correlations(self.signals, self.lines, tuple(_Peak(q.kind, q.a, q.b, True, q.label) for q in self.peaks),
+                              long_range=False, n_carbons=self.n_carbons)
+        four_view = four_j._view(graph)
+        # peaks that fail alone are out at once; the rest are taken in order (searches capped at
+        # CHECK_NODES steps: an undecided search counts as met)
+        alone = {p: self._solve(graph, self._model((p,)), view)[0] is not False for p in everything}
+        kept: list[int] = []
+        for p in everything:
+            if alone[p] and self._solve(graph, self._model(tuple(kept + [p])), view, CHECK_NODES)[0] is not False:
+                kept.append(p)
+        _, witness = self._solve(graph, self._model(tuple(kept)), view, CHECK_NODES)
+        rows = []
+        for p in everything:
+            peak = self.peaks[p]
+            if p in kept:
+                rows.append(CheckRow(peak.kind, peak.label, "met", self._atoms(p, witness)))
+                continue
+            base = tuple(kept + [p]) if alone[p] else (p,)
+            four, four_witness = four_j._solve(graph, four_j._model(base), four_view, CHECK_NODES)
+            if four is not False and peak.kind != "HSQC":
+                rows.append(CheckRow(peak.kind, peak.label, "met (4 bonds)", four_j._atoms(p, four_witness)))
+                continue
+            far, wide_witness = wide._solve(graph, wide._model(base), wide_view, CHECK_NODES)
+            if far is not False:
+                rows.append(CheckRow(peak.kind, peak.label, "met (long-range)", wide._atoms(p, wide_witness)))
+                continue
+            why = (f"{peak.label} cannot hold together with the cross peaks met before it" if alone[p]
+                   else wide._alone(peak))
+            rows.append(CheckRow(peak.kind, peak.label, "not met", (), why))
+        return tuple(rows)
+
+    def _atoms(self, p: int, witness: dict) -> tuple[int, ...]:
+        """The witness atoms of peak ``p`` (see :class:`~elucidate.model.CheckRow`)."""
+        peak = self.peaks[p]
+        if peak.kind == "HSQC":
+            atom = witness.get(("hsqc", peak.b), witness.get(("hsqc", peak.b, peak.a)))
+            return () if atom is None else (atom,)
+        if peak.kind == "COSY":
+            got = (witness.get(("h", p, 0)), witness.get(("h", p, 1)))
+        else:
+            got = (witness.get(("h", p, 0)), witness.get(("c", p)))
+        return () if None in got else got  # type: ignore[return-value]
 
 
 class _Search:
-    def __init__(self, ev: Correlations, view: _View, vars_: tuple[_Var, ...], cons: tuple) -> None:
+    def __init__(self, ev: Correlations, view: _View, vars_: tuple[_Var, ...], cons: tuple,
+                 max_nodes: int = MAX_NODES) -> None:
         self.ev = ev
+        self.max_nodes = max_nodes
         self.view = view
         self.vars = vars_
         self.cons_of: list[list[tuple[int, int, int]]] = [[] for _ in vars_]
@@ -533,7 +638,7 @@ class _Search:
         checks = [(self.assign[w], lo, hi) for w, lo, hi in self.cons_of[v] if self.assign[w] >= 0]
         for a in self.domains[v]:
             self.nodes += 1
-            if self.nodes > MAX_NODES:
+            if self.nodes > self.max_nodes:
                 raise _Cap
             ok = True
             for b, lo, hi in checks:
@@ -543,10 +648,23 @@ class _Search:
                     break
             if not ok:
                 continue
-            if self._add(v, a) and self._go(k + 1):
+            if self._add(v, a) and self._ahead(v) and self._go(k + 1):
                 return True
             self._remove(v, a)
         return False
+
+    def _ahead(self, v: int) -> bool:
+        """Forward check: every unplaced variable bound to ``v`` still has an
+        atom within its distance bounds of all its placed partners."""
+        for w, _, _ in self.cons_of[v]:
+            if self.assign[w] >= 0:
+                continue
+            placed = [(self.assign[u], lo, hi) for u, lo, hi in self.cons_of[w] if self.assign[u] >= 0]
+            balls = [(self.view.ball(b), lo, hi) for b, lo, hi in placed]
+            if not any(all((d := ball.get(x)) is not None and lo <= d <= hi for ball, lo, hi in balls)
+                       for x in self.domains[w]):
+                return False
+        return True
 
 
 def _dec(counter: dict[int, int], key: int) -> None:
@@ -567,8 +685,13 @@ def _or(items: list[str]) -> str:
 
 
 def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
-    """The strict and the long-range reading of the problem's matched
-    HSQC/COSY/HMBC cross peaks (empty when there are none)."""
+    """The readings of the problem's matched HSQC/COSY/HMBC cross peaks,
+    strictest first (empty when there are none).
+
+    The strict reading (tier 0); the long-range reading of every peak
+    (tier 1, when there are HMBC peaks); the long-range reading of the HSQC
+    and COSY peaks alone (tier 2, when there are any).
+    """
     peaks = [c for c in problem.correlations if c.matched and c.kind in ("HSQC", "COSY", "HMBC")]
     if not peaks:
         return ()
@@ -590,9 +713,13 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         if j not in line_ids:
             c = problem.c13[j]
             line_ids[j] = len(lines)
-            region = next((r for r in carbon_regions() if r.holds(c.shift)), None)
+            derived = is_from_cross_peaks(c)
+            # a line read off the cross peaks spans the δC values that made it
+            ends = {c.shift} if not derived else {
+                p.shift2 for p in problem.correlations if p.kind in ("HSQC", "HMBC") and p.signal2 == j}
+            regions = {next((r.needs for r in carbon_regions() if r.holds(x)), "") for x in ends or {c.shift}}
             lines.append(_Line(j, c.shift, -1 if c.attached_h is None else c.attached_h,
-                               region.needs if region else ""))
+                               regions.pop() if len(regions) == 1 else "", derived))
         return line_ids[j]
 
     out = []
@@ -602,5 +729,11 @@ def correlation_evidence(problem: Problem) -> tuple[Correlations, ...]:
         out.append(_Peak(c.kind, a, b, c.intensity in _WEAK, c.label))
     common = (tuple(signals), tuple(lines), tuple(out))
     n_c = problem.formula["C"]
-    return (Correlations(*common, long_range=False, n_carbons=n_c),
-            Correlations(*common, long_range=True, n_carbons=n_c))
+    found = [Correlations(*common, long_range=False, n_carbons=n_c)]
+    near = tuple(p for p in out if p.kind != "HMBC")
+    if len(near) < len(out):  # HMBC present: the long-range reading of all, then without HMBC
+        found.append(Correlations(*common, long_range=True, n_carbons=n_c, drop_tier=1))
+    if near:
+        found.append(Correlations(tuple(signals), tuple(lines), near, long_range=True, n_carbons=n_c,
+                                  drop_tier=2))
+    return tuple(found)

@@ -284,6 +284,11 @@ class Evidence:
     def admits_smiles(self, smiles: str) -> bool:
         return self.reason(Graph.from_smiles(smiles)) is None
 
+    def check_rows(self, graph: Graph) -> tuple[Any, ...]:
+        """Per-item status on one candidate (:class:`~elucidate.model.CheckRow`),
+        for the report; most evidence has none."""
+        return ()
+
 
 def _fmt(shifts: list[float]) -> str:
     return ", ".join(f"{s:.1f}" for s in shifts)

@@ -30,12 +30,15 @@ from pathlib import Path
 from typing import Any, Iterator, Sequence
 
 from elucidate.errors import InputError
-from elucidate.model import C13Signal, Formula, H1Signal, Problem, SetAside
+from elucidate.model import HETERONUCLEAR, C13Signal, Formula, H1Signal, Problem, SetAside
 from elucidate.parse.annotations import set_aside_record, set_aside_warnings
 from elucidate.parse.correlations import (
+    C13_MATCH_PPM,
     RawPeak,
+    c13_from_cross_peaks,
     correlation_table,
     inline_correlations,
+    jcamp_cross_peaks,
     looks_like_correlation_table,
     match_correlations,
     read_correlation_text,
@@ -504,7 +507,14 @@ def _problem(s: _Settings) -> Problem:
             peaks, notes = _read_correlations(s.correlations[key], kind)
             raw_peaks.extend(peaks)
             warnings.extend(notes)
-    correlations, notes = match_correlations(raw_peaks, h1_signals, c13_signals)
+    c13_index = None
+    if not c13_signals and any(r.kind in HETERONUCLEAR for r in raw_peaks):
+        c13_signals, c13_index = c13_from_cross_peaks(raw_peaks)
+        warnings.append(
+            f"no 13C list given: {len(c13_signals)} 13C line(s) taken from the δC of the HSQC/HMBC cross peaks "
+            f"(δC within {C13_MATCH_PPM} ppm read as one line)"
+        )
+    correlations, notes = match_correlations(raw_peaks, h1_signals, c13_signals, c13_index)
     warnings.extend(notes)
     return Problem(
         formula=formula,
@@ -532,6 +542,8 @@ def _read_correlations(source: _Source, kind: str) -> tuple[list[RawPeak], list[
         if not path.is_absolute():
             path = source.base / path
         text = _read_text(path, f"{kind} file")
+        if looks_like_jcamp(text):
+            return jcamp_cross_peaks(text, path.name, kind), []
         if path.suffix.lower() in _TABLE_SUFFIXES or looks_like_correlation_table(text, kind):
             return correlation_table(text, path.name, kind)
         return read_correlation_text(text, kind, path.name), []

@@ -13,7 +13,9 @@ experiments (``"7.26/128.5"``), two 1H shifts for COSY and NOESY
   ``dH1``/``dH2``, ``F2``/``F1``) for COSY/NOESY, optional ``intensity`` and
   ``note``;
 * inline TOML rows: ``[{dH = 3.67, dC = 174.8, note = "OCH3 to C=O"}]``,
-  or a list of ``"dH/dC"`` strings or ``[dH, dC]`` pairs.
+  or a list of ``"dH/dC"`` strings or ``[dH, dC]`` pairs;
+* a JCAMP-DX file carrying a 2D peak table (:func:`jcamp_cross_peaks`);
+  any other JCAMP-DX file is refused in one line.
 
 Each shift is matched to the 1D signals (:func:`match_correlations`): a 1H
 shift to the :attr:`Problem.h1` signal whose range (or centre) it lies within
@@ -21,6 +23,9 @@ shift to the :attr:`Problem.h1` signal whose range (or centre) it lies within
 :data:`C13_MATCH_PPM`.  A shift that matches no signal, or more than one, is
 a warning naming the peak; the peak is kept (shown) but used in no
 constraint.
+
+Without a 13C list, the δC of the HSQC/HMBC cross peaks supply the 13C lines
+(:func:`c13_from_cross_peaks`), with a warning saying so.
 """
 
 from __future__ import annotations
@@ -48,6 +53,10 @@ __all__ = [
     "inline_correlations",
     "looks_like_correlation_table",
     "match_correlations",
+    "FROM_CROSS_PEAKS",
+    "c13_from_cross_peaks",
+    "is_from_cross_peaks",
+    "jcamp_cross_peaks",
 ]
 
 #: A 1H shift of a cross peak matches a signal within this many ppm of its
@@ -347,12 +356,64 @@ def _c13_matches(shift: float, c13: Sequence[C13Signal]) -> list[int]:
     return [i for i, c in enumerate(c13) if abs(c.shift - shift) <= C13_MATCH_PPM + 1e-9]
 
 
+#: Text of a 13C line taken from the cross peaks when no 13C list is given.
+FROM_CROSS_PEAKS = "from the HSQC/HMBC cross peaks"
+
+
+def c13_from_cross_peaks(raws: Sequence[RawPeak]) -> tuple[tuple[C13Signal, ...], dict[float, int]]:
+    """13C lines read off the δC axis of HSQC/HMBC cross peaks (no 13C list given).
+
+    The distinct δC values are grouped by single linkage within
+    :data:`C13_MATCH_PPM`: two cross peaks whose δC differ by no more than the
+    matching tolerance may be the same carbon, so they make one line (at the
+    mean of its distinct values).  Lines are therefore at least that far
+    apart, and only then are taken as different carbons; carbons closer than
+    that show as one line (a weaker, never a wrong, reading).
+
+    Returns
+    -------
+    lines : tuple of C13Signal
+        High to low, ``text`` ending in :data:`FROM_CROSS_PEAKS`.
+    index : dict
+        Each δC value read -> the index of its line.
+
+    Examples
+    --------
+    >>> lines, index = c13_from_cross_peaks([RawPeak("HSQC", 7.28, 128.5), RawPeak("HMBC", 2.14, 207.9),
+    ...                                      RawPeak("HMBC", 7.19, 128.3), RawPeak("HSQC", 2.14, 30.1)])
+    >>> [c.shift for c in lines], index[128.3]
+    ([207.9, 128.4, 30.1], 1)
+    """
+    values = sorted({r.shift2 for r in raws if r.kind in HETERONUCLEAR}, reverse=True)
+    groups: list[list[float]] = []
+    for v in values:
+        if groups and groups[-1][-1] - v <= C13_MATCH_PPM + 1e-9:
+            groups[-1].append(v)
+        else:
+            groups.append([v])
+    lines = []
+    index: dict[float, int] = {}
+    for i, g in enumerate(groups):
+        centre = round(sum(g) / len(g), 1)
+        span = f"{g[-1]:.1f}-{g[0]:.1f}" if len(g) > 1 else f"{g[0]:.1f}"
+        lines.append(C13Signal(centre, 1, None, f"{span} ({FROM_CROSS_PEAKS})"))
+        for v in g:
+            index[v] = i
+    return tuple(lines), index
+
+
+def is_from_cross_peaks(line: C13Signal) -> bool:
+    """Whether a 13C line was read off the cross peaks (:func:`c13_from_cross_peaks`)."""
+    return line.text.endswith(f"({FROM_CROSS_PEAKS})")
+
+
 def _describe(indices: list[int], shifts: list[float], digits: int) -> str:
     return ", ".join(f"{shifts[i]:.{digits}f}" for i in indices)
 
 
 def match_correlations(
-    raws: Sequence[RawPeak], h1: Sequence[H1Signal], c13: Sequence[C13Signal]
+    raws: Sequence[RawPeak], h1: Sequence[H1Signal], c13: Sequence[C13Signal],
+    c13_index: dict[float, int] | None = None,
 ) -> tuple[tuple[CrossPeak, ...], list[str]]:
     """Match each cross peak's shifts to the 1D signals.
 
@@ -363,6 +424,10 @@ def match_correlations(
     warnings : list of str
         One per shift that matches no signal or several, and per COSY/NOESY
         peak on the diagonal (both shifts in one signal).
+
+    When ``c13`` was read off the cross peaks themselves
+    (:func:`c13_from_cross_peaks`), ``c13_index`` maps each δC to its line
+    and takes the place of the tolerance.
 
     Examples
     --------
@@ -383,7 +448,10 @@ def match_correlations(
         probe = CrossPeak(raw.kind, raw.shift1, raw.shift2)
         name = probe.label + (f" ({raw.where})" if raw.where else "")
         first = _h1_matches(raw.shift1, h1)
-        second = _c13_matches(raw.shift2, c13) if hetero else _h1_matches(raw.shift2, h1)
+        if hetero and c13_index is not None:
+            second = [c13_index[raw.shift2]] if raw.shift2 in c13_index else []
+        else:
+            second = _c13_matches(raw.shift2, c13) if hetero else _h1_matches(raw.shift2, h1)
         s1 = first[0] if len(first) == 1 else None
         s2 = second[0] if len(second) == 1 else None
         issues = []
@@ -420,3 +488,72 @@ def match_correlations(
             f"{no_c13} HSQC/HMBC cross peak(s) cannot be matched: no 13C list given (use --c13 or 'c13 =')"
         )
     return tuple(out), warnings
+
+
+# ----------------------------------------------------------------- JCAMP-DX
+
+_AXES = {"F2": "direct", "X": "direct", "F1": "indirect", "Y": "indirect"}
+
+
+def jcamp_cross_peaks(text: str, name: str, kind: str) -> list[RawPeak]:
+    r"""Cross peaks from a JCAMP-DX file that carries a 2D peak table.
+
+    Read: a block with ``##NUM DIM=2`` (or a ``##DATA TYPE=`` naming a 2D
+    experiment) and ``##PEAK TABLE=(F2,F1,Y..F2,F1,Y)`` -- the direct (1H)
+    axis F2, the indirect axis F1 (13C for HSQC/HMBC, 1H for COSY/NOESY),
+    then an optional intensity; ``(F1,F2,...)`` is read in its own order and
+    ``(XY..XY)``/``(XYZ..XYZ)`` as X = F2, Y = F1 (JCAMP-DX NMR
+    conventions, common practice).  Shifts must be in ppm.  Any other
+    JCAMP-DX file (a 1D peak table, a 2D data matrix) is refused with one
+    line.
+
+    Examples
+    --------
+    >>> doc = "##TITLE=HSQC\n##JCAMP-DX=6.0\n##DATA TYPE=NMR PEAK TABLE\n##NUM DIM=2\n" \
+    ...       "##PEAK TABLE=(F2,F1,Y..F2,F1,Y)\n4.12, 60.5, 100\n1.26, 14.2, 80\n##END="
+    >>> [(p.shift1, p.shift2) for p in jcamp_cross_peaks(doc, "hsqc.jdx", "HSQC")]
+    [(4.12, 60.5), (1.26, 14.2)]
+    """
+    from elucidate.parse.jcamp import _blocks, _clean, _lines, _records
+
+    for block in _blocks(_records(text, name)):
+        header = {label: (value, line) for label, value, line in block}
+        dims = _clean(header.get("NUMDIM", ("", 0))[0])
+        datatype = _clean(header.get("DATATYPE", ("", 0))[0]).upper()
+        two_d = dims == "2" or any(k in datatype for k in ("2D", "HSQC", "HMQC", "HMBC", "COSY", "NOESY"))
+        if not two_d or "PEAKTABLE" not in header:
+            continue
+        value, line = header["PEAKTABLE"]
+        first, *rows = _lines(value, line)
+        symbols = re.findall(r"F1|F2|[A-Z]", re.sub(r"\.\..*", "", first[1].upper()))
+        axes = [_AXES.get(sym) for sym in symbols[:2]]
+        if sorted(a for a in axes if a) != ["direct", "indirect"]:
+            raise InputError(f"{name} line {line}: 2D peak table '{short(first[1])}' does not name its two "
+                             "shift axes (expected (F2,F1,Y..F2,F1,Y))")
+        for key in ("UNITS", "XUNITS", "F1UNITS", "F2UNITS"):
+            if key in header and "HZ" in _clean(header[key][0]).upper():
+                raise InputError(f"{name} line {header[key][1]}: 2D peak table in Hz; give the shifts in ppm")
+        direct = axes.index("direct")
+        peaks = []
+        for n, row in rows:
+            cells = [c for c in re.split(r"[,;\s]+", row.strip()) if c]
+            if not cells:
+                continue
+            where = f"{name} line {n}"
+            if len(cells) < 2:
+                raise InputError(f"{where}: '{short(row)}' needs two shifts")
+            a = to_float(cells[direct], "1H shift", where)
+            b = to_float(cells[1 - direct], "13C shift" if kind in HETERONUCLEAR else "1H shift", where)
+            a, b = _checked(kind, a, b, where)
+            intensity = cells[2] if len(cells) > 2 else ""
+            peaks.append(RawPeak(kind, a, b, "", "", where) if not intensity else
+                         RawPeak(kind, a, b, "", f"intensity {intensity}", where))
+        if not peaks:
+            raise InputError(f"{name}: the 2D peak table has no rows")
+        if len(peaks) > MAX_CROSS_PEAKS:
+            raise InputError(f"{name}: {len(peaks)} cross peaks, more than {MAX_CROSS_PEAKS}")
+        return peaks
+    raise InputError(
+        f"{name}: JCAMP-DX file without a 2D peak table (##NUM DIM=2 and ##PEAK TABLE=(F2,F1,Y..F2,F1,Y)); "
+        f"give the {kind} cross peaks as text ({_example(kind)}, ...) or a table"
+    )

@@ -10,6 +10,7 @@ from typing import Any
 
 from elucidate import CAUTION
 from elucidate.model import Problem
+from elucidate.parse.correlations import is_from_cross_peaks
 from elucidate.parse.formula import MAX_HEAVY_ATOMS
 
 __all__ = ["readback_text", "readback_json"]
@@ -73,7 +74,9 @@ def readback_text(problem: Problem) -> str:
     lines.append("")
     if problem.c13:
         n_c = sum(s.carbons for s in problem.c13)
-        lines.append(f"13C signals  {len(problem.c13)}, {n_c} C (formula {f['C']} C)")
+        derived = all(is_from_cross_peaks(s) for s in problem.c13)
+        lines.append(f"13C signals  {len(problem.c13)}, {n_c} C (formula {f['C']} C)"
+                     + ("; read off the HSQC/HMBC cross peaks (no 13C list given)" if derived else ""))
         kinds = {3: "CH3", 2: "CH2", 1: "CH", 0: "C"}
         c_rows = [
             (

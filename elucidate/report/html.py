@@ -52,6 +52,7 @@ from elucidate.report.common import (
     signal_letter,
     tint,
 )
+from elucidate.report.correlations import correlation_card_html, correlation_matrix_html
 
 __all__ = [
     "write_html",
@@ -207,6 +208,8 @@ details ul{margin:4px 0 2px 16px;padding:0}
 .example ul{margin:4px 0 0 14px;padding:0}
 .input td{font-size:14px}
 h4.c13{margin:14px 0 4px;font-size:15px;color:var(--accent)}
+td.met{color:var(--ok)}td.unmet,li.unmet{color:var(--warn);font-weight:600}td.muted{color:var(--muted)}
+.unmet{color:var(--warn)}.xlist{font-size:13px;margin:4px 0 0 16px;padding:0}.xcard{margin-top:10px}
 footer{color:var(--muted);font-size:12px;border-top:1px solid var(--line);padding-top:8px;margin-top:30px}
 @media print{header{background:#fff;color:var(--ink);border-bottom:3px solid var(--accent)}
 .card{break-inside:avoid}details{display:block}}
@@ -243,7 +246,8 @@ def _page(
         _caution(),
     ]
     if explain is None:
-        parts += [_status(result), _overview(result, shown), _next_measurements(result)]
+        parts += [_status(result), _overview(result, shown), correlation_matrix_html(result, shown),
+                  _next_measurements(result)]
     else:
         parts.append(explain)
     for cand in shown:
@@ -380,6 +384,7 @@ def _candidate_card(problem: Problem, cand: Candidate, shown_notes: Sequence[str
         "</div>"
         f"{_assignment_table(problem, cand, envs)}"
         f"{_c13_panel(problem, cand)}"
+        f"{correlation_card_html(cand, smiles)}"
         "</section>"
     )
 

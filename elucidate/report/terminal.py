@@ -27,6 +27,7 @@ from elucidate.report.common import (
     signal_letter,
     table_rows,
 )
+from elucidate.report.correlations import correlation_lines
 
 __all__ = ["render_solve", "render_explain", "solve_lines", "explain_lines"]
 
@@ -114,6 +115,7 @@ def solve_lines(result: SolveResult, *, top: int | None = None) -> list[str]:
             lines += [f"note: {n}" for n in best.notes]
     else:
         lines.append("No candidate is consistent with the data.")
+    lines += correlation_lines(result)
     lines += _measurement_lines(result)
     rej = _rejection_rows(result)
     if rej:
@@ -318,6 +320,9 @@ def _rich_solve(result: SolveResult, stream: TextIO, top: int | None) -> None:
                 console.print(Text(f"note: {note}", style="dim"))
     else:
         console.print(Text("No candidate is consistent with the data.", style="bold red"))
+    for line in correlation_lines(result):
+        style = "bold red" if line.startswith("no candidate meets") else ("bold" if line.startswith("2D cross") else "")
+        console.print(Text(line, style=style))
     measure = _measurement_lines(result)
     if measure:
         console.print(Text(measure[1], style="bold"))

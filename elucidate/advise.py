@@ -32,7 +32,10 @@ reliably the experiment shows the difference (common practice: DEPT line
 counts and D2O exchange are direct; a ³J COSY peak nearly always appears
 but may be weak for a small J; HMBC peaks depend on J(C,H) and an expected
 ³J peak can be missing).  Observations are ranked by how many candidate
-pairs they separate (figure ≥ :data:`SEPARATES`), then by the figure.
+pairs they separate (figure ≥ :data:`SEPARATES`), then by the figure —
+except that one separating the best two candidates always comes before
+one that does not: "is it the first or the second?" is the question a
+chemist asks of a close result.
 """
 
 from __future__ import annotations
@@ -238,12 +241,15 @@ class _Obs:
             separated=sum(1 for f in self.figures if f >= SEPARATES),
             pairs=len(self.figures),
             basis=self.basis,
+            top_pair=round(self.figures[0], 2),
         )
 
     def key(self) -> tuple:
+        # the best two first (pair 0 in combinations order): that is the
+        # question the chemist has; then how many pairs, then the margins
         sep = sum(1 for f in self.figures if f >= SEPARATES)
-        return (-sep, -round(min(self.figures), 4), -round(sum(self.figures), 4),
-                _ORDER.index(self.experiment), self.observation)
+        return (self.figures[0] < SEPARATES, -sep, -round(min(self.figures), 4), -round(self.figures[0], 4),
+                -round(sum(self.figures), 4), _ORDER.index(self.experiment), self.observation)
 
 
 def _advise(problem: Problem, views: list[_View], limit: int) -> tuple[NextMeasurement, ...]:

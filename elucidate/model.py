@@ -461,7 +461,8 @@ class NextMeasurement(_JsonMixin):
     predicts, in the same order.  ``discrimination`` is the smallest, over
     the pairs of compared candidates, of the predicted difference divided by
     the prediction's typical error (``basis`` says how); ``separated`` is the
-    number of pairs it tells apart (figure of at least 2) out of ``pairs``.
+    number of pairs it tells apart (figure of at least 2) out of ``pairs``;
+    ``top_pair`` the figure for the best two candidates alone.
     """
 
     experiment: str  # "13C", "DEPT", "COSY", "HMBC", "1H coupling", "D2O shake"
@@ -472,6 +473,21 @@ class NextMeasurement(_JsonMixin):
     separated: int
     pairs: int
     basis: str = ""
+    top_pair: float = 0.0
+
+    def figure_text(self) -> str:
+        """The discrimination as shown in the reports: the figure, and with
+        more than two candidates the pairs told apart and the best two's own.
+
+        Examples
+        --------
+        >>> NextMeasurement("COSY", "a/b", (1, 2, 3), ("yes", "no", "yes"), 0.0, 2, 3, top_pair=3.0).figure_text()
+        '0.0 (2/3 pairs; 1 vs 2: 3.0)'
+        """
+        if self.pairs <= 1:
+            return f"{self.discrimination:.1f}"
+        first, second = self.ranks[:2]
+        return f"{self.discrimination:.1f} ({self.separated}/{self.pairs} pairs; {first} vs {second}: {self.top_pair:.1f})"
 
 
 @dataclass(frozen=True)

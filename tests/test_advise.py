@@ -126,3 +126,22 @@ def test_terminal_and_html_show_the_heading():
     text = "\n".join(solve_lines(result))
     assert "What to measure next" in text and "13C" in text
     assert "What to measure next" in render_html(result)
+
+
+def test_with_three_close_candidates_the_best_two_are_told_apart_first():
+    # Three C4H8O2 esters fitting the ethyl acetate list about equally: the
+    # observations that tell candidate 1 from candidate 2 are listed before
+    # any that do not (13C shifts of the three esters differ by tens of ppm:
+    # Gottlieb et al. 1997 above and common practice for formates, ~161 ppm).
+    problem = load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, solvent="CDCl3")
+    cands = [
+        _candidate(problem, "CCOC(C)=O", 1, 2.0),
+        _candidate(problem, "CCC(=O)OC", 2, 2.3),
+        _candidate(problem, "CCCOC=O", 3, 2.6),
+    ]
+    found = next_measurements(problem, cands)
+    assert found and found[0].ranks == (1, 2, 3)
+    assert found[0].top_pair >= SEPARATES
+    told = [m.top_pair >= SEPARATES for m in found]
+    assert told == sorted(told, reverse=True), "a measurement separating 1 from 2 comes first"
+    assert f"1 vs 2: {found[0].top_pair:.1f}" in found[0].figure_text()

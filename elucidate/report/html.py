@@ -326,7 +326,7 @@ def _next_measurements(result: SolveResult) -> str:
     rows = []
     for m in found:
         cells = "".join(f"<td>{escape(v)}</td>" for v in m.predicted)
-        figure = f"{m.discrimination:.1f}" + (f" ({m.separated}/{m.pairs} pairs)" if m.pairs > 1 else "")
+        figure = m.figure_text()
         rows.append(
             f"<tr><td>{escape(m.experiment)}</td><td>{escape(m.observation)}</td>{cells}"
             f'<td class="num" title="{escape(m.basis)}">{escape(figure)}</td></tr>'

@@ -148,10 +148,7 @@ def _measurement_lines(result: SolveResult) -> list[str]:
     rows = [("experiment", "observation", "predicted (candidate: value)", "figure")]
     for m in found:
         values = "; ".join(f"{r}: {v}" for r, v in zip(m.ranks, m.predicted))
-        figure = f"{m.discrimination:.1f}"
-        if m.pairs > 1:
-            figure += f" ({m.separated}/{m.pairs} pairs)"
-        rows.append((m.experiment, m.observation, values, figure))
+        rows.append((m.experiment, m.observation, values, m.figure_text()))
     lines += _align(rows, (False, False, False, True))
     return lines
 

@@ -487,39 +487,65 @@ def _solutions(
             vs.append(tuple(cur))
         return xs, vs
     count = 0
+    n = len(lo)
+    # vertex capacity still open (vertices whose last edge is not yet set):
+    # the extra units left use exactly twice their number of it, and must
+    # cover what the open vertices still need
+    has_edge = [False] * n
+    for j in range(m):
+        has_edge[eu[j]] = has_edge[ev[j]] = True
+    if any(lo[w] > 0 for w in range(n) if not has_edge[w]):
+        return xs, vs
+    cap0 = sum(hi[w] for w in range(n) if has_edge[w])
+    need0 = sum(max(0, lo[w]) for w in range(n) if has_edge[w])
 
-    def rec(j: int, left: int) -> None:
+    def rec(j: int, left: int, capo: int, needo: int) -> None:
         nonlocal count
         if j == m:
             if left == 0:
                 xs.append(tuple(x))
                 vs.append(tuple(cur))
             return
-        if left > 2 * (m - j):
-            return
         u = eu[j]
         v = ev[j]
-        top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
+        cu = cur[u]
+        cv = cur[v]
+        top = min(2, left, hi[u] - cu, hi[v] - cv)
         cl = closes[j]
+        gu = lo[u] - cu
+        gv = lo[v] - cv
         for o in range(top + 1):
             count += 1
             if tick is not None and not count & 4095:
                 tick()
             if o == 2 and small_ring[j]:
                 continue
-            cur[u] += o
-            cur[v] += o
+            if left - o > 2 * (m - j - 1):
+                continue
+            rest2 = 2 * (left - o)
+            need = needo
+            if gu > 0:
+                need -= o if o < gu else gu
+            if gv > 0:
+                need -= o if o < gv else gv
+            if need > rest2:
+                continue
+            cap = capo - 2 * o
+            cur[u] = cu + o
+            cur[v] = cv + o
             for w in cl:
                 if cur[w] < lo[w]:
                     break
+                cap -= hi[w] - cur[w]
             else:
-                x[j] = o
-                rec(j + 1, left - o)
-            cur[u] -= o
-            cur[v] -= o
+                if rest2 <= cap:
+                    x[j] = o
+                    rec(j + 1, left - o, cap, need)
+        cur[u] = cu
+        cur[v] = cv
         x[j] = 0
 
-    rec(0, total)
+    rec(0, total, cap0, need0)
     visit[0] += count
     return xs, vs
 
@@ -584,6 +610,8 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> 
     for v in range(n):
         if dmask[v] and smask[v]:
             alive |= 1 << v
+    if alive.bit_count() < 4:  # an alternating cycle has at least four atoms
+        return False
     changed = True
     while changed and alive:
         changed = False

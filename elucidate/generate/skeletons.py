@@ -27,7 +27,7 @@ from itertools import combinations
 from operator import itemgetter
 from typing import Callable, Iterator
 
-__all__ = ["Skeleton", "skeletons", "iter_skeletons"]
+__all__ = ["Skeleton", "skeletons", "iter_skeletons", "reference_skeletons", "cores_cache_clear"]
 
 
 @dataclass
@@ -390,8 +390,190 @@ def iter_skeletons(
     """
     if n < 1:
         return
+    if min_leaves >= 1 and n >= 3:
+        for adj, gens in _leafed(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
+            yield Skeleton(n, adj, gens)
+        return
     for adj, gens in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
         yield Skeleton(n, adj, gens)
+
+
+def reference_skeletons(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    *,
+    min_edges: int = 0,
+    girth5: bool = False,
+    min_leaves: int = 0,
+) -> Iterator[Skeleton]:
+    """The same graphs as :func:`iter_skeletons`, always by canonical
+    augmentation on all ``n`` vertices (no leaves taken off): the reference
+    the leaf-stripped path is tested against."""
+    if n < 1:
+        return
+    for adj, gens in _skeletons(n, max_edges, caps, min_edges, girth5, None, min_leaves, None):
+        yield Skeleton(n, adj, gens)
+
+
+# complete core lists by walk parameters (a solve asks for the same cores
+# under many hypotheses that differ only in their leaf atoms)
+_CORES: dict[tuple[int, int, tuple[int, ...], bool], list[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]] = {}
+_CORES_MAX = 32
+
+
+def cores_cache_clear() -> None:
+    """Forget the cached core graphs (benchmarks measure cold runs)."""
+    _CORES.clear()
+
+
+def _cores(
+    kmax: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+    tick: Callable[[], None] | None,
+) -> Iterator[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]:
+    """Every connected graph on 1..kmax vertices whose k-vertex members
+    have at most ``max_edges - (kmax - k)`` edges and degrees under ``caps``,
+    once per isomorphism class, with its automorphism group (all
+    permutations).  One depth-first walk of the augmentation tree: each node
+    of it is such a graph."""
+    key = (kmax, max_edges, caps, girth5)
+    done = _CORES.get(key)
+    if done is not None:
+        yield from done
+        return
+    got: list[tuple[tuple[int, ...], int, list[tuple[int, ...]]]] = []
+    nw = _nw()
+
+    def node(adj: tuple[int, ...], e: int) -> tuple[tuple[int, ...], int, list[tuple[int, ...]]]:
+        k = len(adj)
+        if k == 1:
+            return adj, e, [(0,)]
+        gens = nw.graph_autgrp(_nauty_graph(k, adj))[0]
+        group = _closure(k, [tuple(g) for g in gens]) if gens else [tuple(range(k))]
+        return adj, e, group
+
+    def walk(adj: tuple[int, ...], e: int) -> Iterator[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]:
+        if tick is not None:
+            tick()
+        item = node(adj, e)
+        got.append(item)
+        yield item
+        if len(adj) < kmax:
+            for new, e2, _ in _children(adj, e, kmax + 1, max_edges + 1, caps, 0, girth5, on_visit, 0):
+                yield from walk(new, e2)
+
+    yield from walk((0,), 0)
+    _CORES[key] = got
+    while len(_CORES) > _CORES_MAX:
+        del _CORES[next(iter(_CORES))]
+
+
+def _leafed(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    min_edges: int,
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+    min_leaves: int,
+    tick: Callable[[], None] | None,
+) -> Iterator[tuple[tuple[int, ...], list | None]]:  # type: ignore[type-arg]
+    """The graphs of :func:`_skeletons` (``n >= 3``) from their cores.
+
+    The core of a connected graph on three or more vertices is what is left
+    when every vertex of degree one is taken off; it is connected, and the
+    graph is the core with ``a_v`` leaves hung on each core vertex v, where
+    ``deg_core(v) + a_v >= 2`` (no core vertex is itself a leaf).  Graph and
+    (core, leaf counts up to the core's automorphisms) determine each other,
+    so every graph comes out once: each core once (canonical augmentation),
+    each leaf-count vector once per orbit of the core's group (the
+    lexicographically smallest).  At least ``min_leaves`` leaves means a
+    core of at most ``n - min_leaves`` vertices, so the augmentation tree
+    is walked that much less deep.  Vertices of degree one can only carry
+    atoms with cap 1 or more, core vertices only atoms with cap 2 or more.
+    """
+    inner = tuple(c for c in caps if c >= 2)
+    kmax = min(n - min_leaves, len(inner))
+    if kmax < 1:
+        return
+    dmax = caps[0]
+    # the walk's own pruning: a k-vertex core with e edges needs
+    # e + (n - k) <= max_edges, i.e. e <= (max_edges - n + kmax) - (kmax - k)
+    walk_edges = max_edges - n + kmax
+    if walk_edges < 0:
+        return
+    import pynauty
+
+    nw = _nw()
+    for cadj, ce, group in _cores(kmax, walk_edges, inner[:kmax], girth5, on_visit, tick):
+        k = len(cadj)
+        nleaf = n - k
+        if ce + nleaf < min_edges or ce + nleaf > max_edges:
+            continue
+        cdeg = [a.bit_count() for a in cadj]
+        lo = [max(0, 2 - d) for d in cdeg]
+        hi = [dmax - d for d in cdeg]
+        if sum(lo) > nleaf or sum(hi) < nleaf:
+            continue
+        perms = [itemgetter(*p) for p in group[1:]] if k > 1 else []
+        # leaves (degree 1) take the smallest caps, so the graph fits its caps
+        # when the core vertices' degrees fit under the k largest
+        limit = [sum(1 for c in caps[:k] if c >= d) for d in range(dmax + 1)]
+        for a in _leaf_counts(lo, hi, nleaf, cdeg, limit):
+            if perms and any(p(a) < a for p in perms):
+                continue
+            adj = list(cadj)
+            w = k
+            for v, av in enumerate(a):
+                if av:
+                    bits = ((1 << av) - 1) << w
+                    adj[v] |= bits
+                    adj.extend([1 << v] * av)
+                    w += av
+            g = pynauty.Graph.__new__(pynauty.Graph)
+            g.number_of_vertices = n
+            g.directed = False
+            g._adjacency_dict = {v: _bits(adj[v]) for v in range(n)}
+            g._vertex_coloring = []
+            yield tuple(adj), nw.graph_autgrp(g)[0]
+
+
+def _leaf_counts(
+    lo: list[int], hi: list[int], total: int, cdeg: list[int], limit: list[int]
+) -> Iterator[tuple[int, ...]]:
+    """Vectors a with lo <= a <= hi and sum ``total``, in lexicographic order,
+    such that at most ``limit[d]`` vertices reach degree ``cdeg[v] + a[v] >= d``."""
+    k = len(lo)
+    rest_lo = [0] * (k + 1)
+    rest_hi = [0] * (k + 1)
+    for i in range(k - 1, -1, -1):
+        rest_lo[i] = rest_lo[i + 1] + lo[i]
+        rest_hi[i] = rest_hi[i + 1] + hi[i]
+    cur = [0] * k
+    used = [0] * len(limit)
+
+    def rec(i: int, left: int) -> Iterator[tuple[int, ...]]:
+        if i == k:
+            if left == 0:
+                yield tuple(cur)
+            return
+        d0 = cdeg[i]
+        for x in range(max(lo[i], left - rest_hi[i + 1]), min(hi[i], left - rest_lo[i + 1]) + 1):
+            top = d0 + x
+            if any(used[d] >= limit[d] for d in range(2, top + 1)):
+                break  # higher x only reaches higher degrees
+            for d in range(2, top + 1):
+                used[d] += 1
+            cur[i] = x
+            yield from rec(i + 1, left - x)
+            for d in range(2, top + 1):
+                used[d] -= 1
+
+    yield from rec(0, total)
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:

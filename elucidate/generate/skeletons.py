@@ -23,8 +23,8 @@ from __future__ import annotations
 
 import functools
 from dataclasses import dataclass, field
-from itertools import combinations
-from operator import itemgetter
+from itertools import combinations, combinations_with_replacement
+from operator import add, itemgetter
 from typing import Callable, Iterator
 
 __all__ = ["Skeleton", "skeletons", "iter_skeletons", "reference_skeletons", "cores_cache_clear"]
@@ -522,8 +522,7 @@ def _leafed(
         perms = [itemgetter(*p) for p in group[1:]] if k > 1 else []
         # leaves (degree 1) take the smallest caps, so the graph fits its caps
         # when the core vertices' degrees fit under the k largest
-        limit = [sum(1 for c in caps[:k] if c >= d) for d in range(dmax + 1)]
-        for a in _leaf_counts(lo, hi, nleaf, cdeg, limit):
+        for a in _leaf_counts(lo, hi, nleaf, cdeg, caps[:k]):
             if perms and any(p(a) < a for p in perms):
                 continue
             adj = list(cadj)
@@ -543,37 +542,22 @@ def _leafed(
 
 
 def _leaf_counts(
-    lo: list[int], hi: list[int], total: int, cdeg: list[int], limit: list[int]
+    lo: list[int], hi: list[int], total: int, cdeg: list[int], caps: tuple[int, ...]
 ) -> Iterator[tuple[int, ...]]:
-    """Vectors a with lo <= a <= hi and sum ``total``, in lexicographic order,
-    such that at most ``limit[d]`` vertices reach degree ``cdeg[v] + a[v] >= d``."""
-    k = len(lo)
-    rest_lo = [0] * (k + 1)
-    rest_hi = [0] * (k + 1)
-    for i in range(k - 1, -1, -1):
-        rest_lo[i] = rest_lo[i + 1] + lo[i]
-        rest_hi[i] = rest_hi[i + 1] + hi[i]
-    cur = [0] * k
-    used = [0] * len(limit)
-
-    def rec(i: int, left: int) -> Iterator[tuple[int, ...]]:
-        if i == k:
-            if left == 0:
-                yield tuple(cur)
-            return
-        d0 = cdeg[i]
-        for x in range(max(lo[i], left - rest_hi[i + 1]), min(hi[i], left - rest_lo[i + 1]) + 1):
-            top = d0 + x
-            if any(used[d] >= limit[d] for d in range(2, top + 1)):
-                break  # higher x only reaches higher degrees
-            for d in range(2, top + 1):
-                used[d] += 1
-            cur[i] = x
-            yield from rec(i + 1, left - x)
-            for d in range(2, top + 1):
-                used[d] -= 1
-
-    yield from rec(0, total)
+    """Vectors a with lo <= a <= hi and sum ``total`` such that the degrees
+    ``cdeg[v] + a[v]``, sorted, fit under ``caps`` (deterministic order)."""
+    r = total - sum(lo)
+    if r < 0:
+        return
+    elig = [v for v in range(len(lo)) if hi[v] > lo[v]]
+    for combo in combinations_with_replacement(elig, r):
+        a = list(lo)
+        for v in combo:
+            a[v] += 1
+        if r > 1 and any(a[v] > hi[v] for v in combo):
+            continue
+        if all(d <= c for d, c in zip(sorted(map(add, cdeg, a), reverse=True), caps)):
+            yield tuple(a)
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:

@@ -506,7 +506,7 @@ def _by_masks(
     full = (1 << nx) - 1
     m = len(edges)
     by_range: dict[tuple[int, int, int], int] = {}
-    notless: dict[int, int] = {}
+    notless: dict[tuple[int, ...], int] = {}
     eperms: dict[int, object] = {}
     flag_mask = _mask([k in flagged for k in range(nx)]) if flagged else 0
     n = len(lo_env)
@@ -529,6 +529,7 @@ def _by_masks(
         vlabels = tuple(labels[i] for i in c)
         eperm = []
         if gperm and m > 1:
+            stab = []
             for gi, p in enumerate(gperm):
                 if p(c) != c:
                     continue
@@ -539,10 +540,24 @@ def _by_masks(
                         *[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges]
                     )
                 eperm.append(ep)
-                nl_mask = notless.get(gi)
-                if nl_mask is None:
-                    nl_mask = notless[gi] = _mask([not ep(x) < x for x in xs])  # type: ignore[operator]
-                mask &= nl_mask
+                stab.append(gi)
+            if eperm:
+                # solutions no automorphism fixing c makes smaller; one set per
+                # stabiliser (colourings often share one), or just this one's
+                if len(reps) == 1:
+                    keep = [False] * nx
+                    for i in _members(mask):
+                        x = xs[i]
+                        keep[i] = not any(ep(x) < x for ep in eperm)  # type: ignore[operator]
+                    mask &= _mask(keep)
+                else:
+                    skey = tuple(stab)
+                    nl_mask = notless.get(skey)
+                    if nl_mask is None:
+                        nl_mask = notless[skey] = _mask(
+                            [not any(ep(x) < x for ep in eperm) for x in xs]  # type: ignore[operator]
+                        )
+                    mask &= nl_mask
         if not mask:
             continue
         fl = mask & flag_mask
@@ -638,6 +653,42 @@ def _solutions(
         return xs, vs
     count = 0
     n = len(lo)
+    if exact is None:
+        # no per-atom sums to meet: the plain search (its nodes are cheapest)
+        def rec0(j: int, left: int) -> None:
+            nonlocal count
+            if j == m:
+                if left == 0:
+                    xs.append(tuple(x))
+                    vs.append(tuple(cur))
+                return
+            if left > 2 * (m - j):
+                return
+            u = eu[j]
+            v = ev[j]
+            top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
+            cl = closes[j]
+            for o in range(top + 1):
+                count += 1
+                if tick is not None and not count & 4095:
+                    tick()
+                if o == 2 and small_ring[j]:
+                    continue
+                cur[u] += o
+                cur[v] += o
+                for w in cl:
+                    if cur[w] < lo[w]:
+                        break
+                else:
+                    x[j] = o
+                    rec0(j + 1, left - o)
+                cur[u] -= o
+                cur[v] -= o
+            x[j] = 0
+
+        rec0(0, total)
+        visit[0] += count
+        return xs, vs
     # vertex capacity still open (vertices whose last edge is not yet set):
     # the extra units left use exactly twice their number of it, and must
     # cover what the open vertices still need

@@ -498,7 +498,7 @@ def _leafed(
     """
     inner = tuple(c for c in caps if c >= 2)
     kmax = min(n - min_leaves, len(inner))
-    if kmax < 1:
+    if kmax < 1 or caps[-1] < 1:  # an atom that cannot bond fits no connected graph
         return
     dmax = caps[0]
     # the walk's own pruning: a k-vertex core with e edges needs

@@ -248,7 +248,7 @@ def decorate(
     # exact bond-order sums (every atom's H fixed): solve bond orders first and
     # let the colouring follow only prefixes of feasible per-vertex sums
     exact = all(lab.bs_lo == lab.bs_hi for lab in labels)
-    prefixes: list[set[tuple[int, ...]]] = []
+    trie: dict = {}  # type: ignore[type-arg]
     xs: list[tuple[int, ...]] = []
     vs: list[tuple[int, ...]] = []
     if exact:
@@ -259,22 +259,35 @@ def decorate(
         lo_env = [max(0, x) for x in lo_env]
         if sum(lo_env) > 2 * extra_total or sum(hi_env) < 2 * extra_total:
             return
-        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit, tick)
+        allowed_ext = [0] * n
+        for v in range(n):
+            for i in cands[v]:
+                e0 = labels[i].bs_lo - deg[v]
+                if e0 >= 0:
+                    allowed_ext[v] |= 1 << e0
+        avail = [0] * (max(lab.bs_lo for lab in labels) + 1)
+        for lab, k in zip(labels, prob.counts):
+            avail[lab.bs_lo] += k
+        xs, vs = _solutions(m, eu, ev, closes, lo_env, hi_env, extra_total, small_ring, visit, tick,
+                            (allowed_ext, list(deg), avail))
         if not xs:
             return
-        prefixes = [set() for _ in range(n)]
+        # the feasible per-vertex sums as a trie: vertex t's sum -> the rest
         for vsum in vs:
-            for t in range(n):
-                prefixes[t].add(vsum[: t + 1])
-    ext = [0] * n
-
+            node = trie
+            for e0 in vsum:
+                nxt = node.get(e0)
+                if nxt is None:
+                    nxt = node[e0] = {}
+                node = nxt
     reps: list[tuple[int, ...]] = []
     units = any(lab.is_unit for lab in labels)
     check = need_nh or charge_sep
     nvis = 0
 
-    def colourings(t: int) -> None:
+    def colourings(t: int, node: dict | None = None) -> None:  # type: ignore[type-arg]
         nonlocal nvis
+        nxt: dict | None = None  # type: ignore[type-arg]
         for i in cands[t]:
             if counts[i]:
                 nvis += 1
@@ -282,8 +295,8 @@ def decorate(
                     tick()
                 colour[t] = i
                 if exact:
-                    ext[t] = labels[i].bs_lo - deg[t]
-                    if tuple(ext[: t + 1]) not in prefixes[t]:
+                    nxt = node.get(labels[i].bs_lo - deg[t])  # type: ignore[union-attr]
+                    if nxt is None:
                         continue
                 if check and not colour_ok(t):
                     continue
@@ -298,10 +311,10 @@ def decorate(
                     reps.append(c)
                 else:
                     counts[i] -= 1
-                    colourings(t + 1)
+                    colourings(t + 1, nxt)
                     counts[i] += 1
 
-    colourings(0)
+    colourings(0, trie)
     visit[0] += nvis
     if not reps:
         return
@@ -340,14 +353,22 @@ def decorate(
     # solutions that may have a Kekulé partner (independent of the colouring)
     # (an alternating cycle needs a cycle: trees never qualify)
     ring_idx = list(range(m)) if m >= n and not units else []
-    flagged: set[int] = set()
-    if ring_idx:
+    flagged: set[int] | _LazyFlags = set()
+    if ring_idx and exact:
+        flagged = _LazyFlags(sk, xs, ring_idx)  # most solutions fit no colouring
+    elif ring_idx:
         for k, x in enumerate(xs):
             if 1 in x and _may_have_partner(sk, x, ring_idx):
-                flagged.add(k)
+                flagged.add(k)  # type: ignore[union-attr]
     all_idx = range(len(xs))
     eperm_cache: dict[int, object] = {}
     gfull = group[1:]
+    if not exact and not nohet and not nocum:
+        yield from _by_masks(
+            reps, xs, vs, lohi, lo_env, hi_env, flagged, gperm, gfull, edges, edge_index,
+            labels, filters, colour_hook, counting, tick,
+        )
+        return
     for c in reps:
         if index is not None:
             cand = index.get(tuple(max(0, lohi[c[v]][v][0]) for v in range(n)), [])
@@ -426,6 +447,144 @@ def decorate(
             yield vlabels, (len(out) if counting else out)  # type: ignore[misc]
 
 
+class _LazyFlags:
+    """``k in flags``: may solution k have a Kekulé partner?  Decided on first
+    asking and remembered."""
+
+    def __init__(self, sk: Skeleton, xs: list[tuple[int, ...]], ring_idx: list[int]) -> None:
+        self.sk, self.xs, self.ring_idx = sk, xs, ring_idx
+        self.known: dict[int, bool] = {}
+
+    def __bool__(self) -> bool:
+        return True
+
+    def __contains__(self, k: int) -> bool:
+        got = self.known.get(k)
+        if got is None:
+            x = self.xs[k]
+            got = self.known[k] = 1 in x and _may_have_partner(self.sk, x, self.ring_idx)
+        return got
+
+
+def _mask(bits: Iterator[bool] | list[bool]) -> int:
+    """A bitset (bit k set when item k is true) in linear time."""
+    text = "".join(["1" if b else "0" for b in bits])
+    return int(text[::-1], 2) if text else 0
+
+
+def _members(mask: int) -> list[int]:
+    """Indices of the set bits of ``mask``, ascending."""
+    text = bin(mask)[:1:-1]
+    return [i for i, ch in enumerate(text) if ch == "1"]
+
+
+def _by_masks(
+    reps: list[tuple[int, ...]],
+    xs: list[tuple[int, ...]],
+    vs: list[tuple[int, ...]],
+    lohi: list[list[tuple[int, int]]],
+    lo_env: list[int],
+    hi_env: list[int],
+    flagged: set[int],
+    gperm: list,  # type: ignore[type-arg]
+    gfull: list[tuple[int, ...]],
+    edges: tuple[tuple[int, int], ...],
+    edge_index: dict[tuple[int, int], int],
+    labels: tuple[Label, ...],
+    filters: Filters,
+    colour_hook: Callable[[tuple[int, ...]], None] | None,
+    counting: bool,
+    tick: Callable[[], None] | None,
+) -> Iterator[tuple[tuple[Label, ...], list[tuple[int, ...]]]]:
+    """The per-colouring part of :func:`decorate` with the solutions as
+    bitsets: a colouring's solutions are the AND of one set per vertex whose
+    bond-order range it narrows, and of one set per automorphism fixing it
+    (the solutions that are not larger than their image), each set built
+    once per skeleton and not once per colouring.  Same output, same order.
+    """
+    nx = len(xs)
+    full = (1 << nx) - 1
+    m = len(edges)
+    by_range: dict[tuple[int, int, int], int] = {}
+    notless: dict[tuple[int, ...], int] = {}
+    eperms: dict[int, object] = {}
+    flag_mask = _mask([k in flagged for k in range(nx)]) if flagged else 0
+    n = len(lo_env)
+    for c in reps:
+        mask = full
+        for v in range(n):
+            lv, hv = lohi[c[v]][v]
+            if lv > lo_env[v] or hv < hi_env[v]:
+                key = (v, lv, hv)
+                mv = by_range.get(key)
+                if mv is None:
+                    mv = by_range[key] = _mask([lv <= vsum[v] <= hv for vsum in vs])
+                mask &= mv
+                if not mask:
+                    break
+        if not mask:
+            continue
+        if colour_hook is not None:
+            colour_hook(c)
+        vlabels = tuple(labels[i] for i in c)
+        eperm = []
+        if gperm and m > 1:
+            stab = []
+            for gi, p in enumerate(gperm):
+                if p(c) != c:
+                    continue
+                ep = eperms.get(gi)
+                if ep is None:
+                    g = gfull[gi]
+                    ep = eperms[gi] = itemgetter(
+                        *[edge_index[(min(g[u], g[v]), max(g[u], g[v]))] for u, v in edges]
+                    )
+                eperm.append(ep)
+                stab.append(gi)
+            if eperm:
+                # solutions no automorphism fixing c makes smaller; one set per
+                # stabiliser (colourings often share one), or just this one's
+                if len(reps) == 1:
+                    keep = [False] * nx
+                    for i in _members(mask):
+                        x = xs[i]
+                        keep[i] = not any(ep(x) < x for ep in eperm)  # type: ignore[operator]
+                    mask &= _mask(keep)
+                else:
+                    skey = tuple(stab)
+                    nl_mask = notless.get(skey)
+                    if nl_mask is None:
+                        nl_mask = notless[skey] = _mask(
+                            [not any(ep(x) < x for ep in eperm) for x in xs]  # type: ignore[operator]
+                        )
+                    mask &= nl_mask
+        if not mask:
+            continue
+        fl = mask & flag_mask
+        if counting:
+            k = mask.bit_count()
+            for i in _members(fl) if fl else ():
+                if tick is not None:
+                    tick()
+                x = xs[i]
+                if not _kekule_canonical(Structure(vlabels, edges, tuple(o + 1 for o in x)), x, eperm, filters):
+                    k -= 1
+            if k:
+                yield vlabels, k  # type: ignore[misc]
+            continue
+        out = []
+        for i in _members(mask):
+            x = xs[i]
+            if fl >> i & 1:
+                if tick is not None:
+                    tick()
+                if not _kekule_canonical(Structure(vlabels, edges, tuple(o + 1 for o in x)), x, eperm, filters):
+                    continue
+            out.append(x)
+        if out:
+            yield vlabels, out
+
+
 def gadget_ok(c: tuple[int, ...], labels: tuple[Label, ...], nbrs: list[list[int]]) -> bool:
     """Do the gadget vertices of a colouring form whole fragments?"""
     for v, li in enumerate(c):
@@ -474,9 +633,15 @@ def _solutions(
     small_ring: list[bool],
     visit: list[int],
     tick: Callable[[], None] | None = None,
+    exact: tuple[list[int], list[int], list[int]] | None = None,
 ) -> tuple[list[tuple[int, ...]], list[tuple[int, ...]]]:
     """Every extra-bond-order vector (0, 1, 2 per edge) with per-vertex sums
-    within [lo, hi] and ``total`` in all; with the per-vertex sums."""
+    within [lo, hi] and ``total`` in all; with the per-vertex sums.
+
+    ``exact`` = (allowed, base, avail) for atoms with fixed H: vertex w may
+    end with sum s only if ``allowed[w] >> s & 1``, its atom's bond-order
+    sum is then ``base[w] + s``, and ``avail[b]`` atoms have sum b (the sums
+    of all vertices must form that multiset)."""
     xs: list[tuple[int, ...]] = []
     vs: list[tuple[int, ...]] = []
     cur = [0] * len(lo)
@@ -487,39 +652,125 @@ def _solutions(
             vs.append(tuple(cur))
         return xs, vs
     count = 0
+    n = len(lo)
+    if exact is None:
+        # no per-atom sums to meet: the plain search (its nodes are cheapest)
+        def rec0(j: int, left: int) -> None:
+            nonlocal count
+            if j == m:
+                if left == 0:
+                    xs.append(tuple(x))
+                    vs.append(tuple(cur))
+                return
+            if left > 2 * (m - j):
+                return
+            u = eu[j]
+            v = ev[j]
+            top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
+            cl = closes[j]
+            for o in range(top + 1):
+                count += 1
+                if tick is not None and not count & 4095:
+                    tick()
+                if o == 2 and small_ring[j]:
+                    continue
+                cur[u] += o
+                cur[v] += o
+                for w in cl:
+                    if cur[w] < lo[w]:
+                        break
+                else:
+                    x[j] = o
+                    rec0(j + 1, left - o)
+                cur[u] -= o
+                cur[v] -= o
+            x[j] = 0
 
-    def rec(j: int, left: int) -> None:
+        rec0(0, total)
+        visit[0] += count
+        return xs, vs
+    # vertex capacity still open (vertices whose last edge is not yet set):
+    # the extra units left use exactly twice their number of it, and must
+    # cover what the open vertices still need
+    has_edge = [False] * n
+    for j in range(m):
+        has_edge[eu[j]] = has_edge[ev[j]] = True
+    if any(lo[w] > 0 for w in range(n) if not has_edge[w]):
+        return xs, vs
+    cap0 = sum(hi[w] for w in range(n) if has_edge[w])
+    allowed: list[int] | None = None
+    if exact is not None:
+        allowed, base, avail = exact[0], exact[1], list(exact[2])
+    need0 = sum(max(0, lo[w]) for w in range(n) if has_edge[w])
+
+    def rec(j: int, left: int, capo: int, needo: int) -> None:
         nonlocal count
         if j == m:
             if left == 0:
                 xs.append(tuple(x))
                 vs.append(tuple(cur))
             return
-        if left > 2 * (m - j):
-            return
         u = eu[j]
         v = ev[j]
-        top = min(2, left, hi[u] - cur[u], hi[v] - cur[v])
+        cu = cur[u]
+        cv = cur[v]
+        top = min(2, left, hi[u] - cu, hi[v] - cv)
         cl = closes[j]
+        gu = lo[u] - cu
+        gv = lo[v] - cv
         for o in range(top + 1):
             count += 1
             if tick is not None and not count & 4095:
                 tick()
             if o == 2 and small_ring[j]:
                 continue
-            cur[u] += o
-            cur[v] += o
+            if left - o > 2 * (m - j - 1):
+                continue
+            rest2 = 2 * (left - o)
+            need = needo
+            if gu > 0:
+                need -= o if o < gu else gu
+            if gv > 0:
+                need -= o if o < gv else gv
+            if need > rest2:
+                continue
+            cap = capo - 2 * o
+            cur[u] = cu + o
+            cur[v] = cv + o
+            if allowed is None:
+                for w in cl:
+                    if cur[w] < lo[w]:
+                        break
+                    cap -= hi[w] - cur[w]
+                else:
+                    if rest2 <= cap:
+                        x[j] = o
+                        rec(j + 1, left - o, cap, need)
+                continue
+            # exact sums: a closed vertex takes one atom whose bond-order sum
+            # it now has, from the multiset of those still free
+            taken = []
             for w in cl:
-                if cur[w] < lo[w]:
+                cw = cur[w]
+                if cw < lo[w] or not allowed[w] >> cw & 1:
                     break
+                b = base[w] + cw
+                if not avail[b]:
+                    break
+                avail[b] -= 1
+                taken.append(b)
+                cap -= hi[w] - cw
             else:
-                x[j] = o
-                rec(j + 1, left - o)
-            cur[u] -= o
-            cur[v] -= o
+                if rest2 <= cap:
+                    x[j] = o
+                    rec(j + 1, left - o, cap, need)
+            for b in taken:
+                avail[b] += 1
+        cur[u] = cu
+        cur[v] = cv
         x[j] = 0
 
-    rec(0, total)
+    rec(0, total, cap0, need0)
     visit[0] += count
     return xs, vs
 
@@ -584,6 +835,8 @@ def _may_have_partner(sk: Skeleton, x: tuple[int, ...], ring_idx: list[int]) -> 
     for v in range(n):
         if dmask[v] and smask[v]:
             alive |= 1 << v
+    if alive.bit_count() < 4:  # an alternating cycle has at least four atoms
+        return False
     changed = True
     while changed and alive:
         changed = False

@@ -23,11 +23,11 @@ from __future__ import annotations
 
 import functools
 from dataclasses import dataclass, field
-from itertools import combinations
-from operator import itemgetter
+from itertools import combinations, combinations_with_replacement
+from operator import add, itemgetter
 from typing import Callable, Iterator
 
-__all__ = ["Skeleton", "skeletons", "iter_skeletons"]
+__all__ = ["Skeleton", "skeletons", "iter_skeletons", "reference_skeletons", "cores_cache_clear"]
 
 
 @dataclass
@@ -390,8 +390,174 @@ def iter_skeletons(
     """
     if n < 1:
         return
+    if min_leaves >= 1 and n >= 3:
+        for adj, gens in _leafed(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
+            yield Skeleton(n, adj, gens)
+        return
     for adj, gens in _skeletons(n, max_edges, caps, min_edges, girth5, on_visit, min_leaves, tick):
         yield Skeleton(n, adj, gens)
+
+
+def reference_skeletons(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    *,
+    min_edges: int = 0,
+    girth5: bool = False,
+    min_leaves: int = 0,
+) -> Iterator[Skeleton]:
+    """The same graphs as :func:`iter_skeletons`, always by canonical
+    augmentation on all ``n`` vertices (no leaves taken off): the reference
+    the leaf-stripped path is tested against."""
+    if n < 1:
+        return
+    for adj, gens in _skeletons(n, max_edges, caps, min_edges, girth5, None, min_leaves, None):
+        yield Skeleton(n, adj, gens)
+
+
+# complete core lists by walk parameters (a solve asks for the same cores
+# under many hypotheses that differ only in their leaf atoms)
+_CORES: dict[tuple[int, int, tuple[int, ...], bool], list[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]] = {}
+_CORES_MAX = 32
+
+
+def cores_cache_clear() -> None:
+    """Forget the cached core graphs (benchmarks measure cold runs)."""
+    _CORES.clear()
+
+
+def _cores(
+    kmax: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+    tick: Callable[[], None] | None,
+) -> Iterator[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]:
+    """Every connected graph on 1..kmax vertices whose k-vertex members
+    have at most ``max_edges - (kmax - k)`` edges and degrees under ``caps``,
+    once per isomorphism class, with its automorphism group (all
+    permutations).  One depth-first walk of the augmentation tree: each node
+    of it is such a graph."""
+    key = (kmax, max_edges, caps, girth5)
+    done = _CORES.get(key)
+    if done is not None:
+        yield from done
+        return
+    got: list[tuple[tuple[int, ...], int, list[tuple[int, ...]]]] = []
+    nw = _nw()
+
+    def node(adj: tuple[int, ...], e: int) -> tuple[tuple[int, ...], int, list[tuple[int, ...]]]:
+        k = len(adj)
+        if k == 1:
+            return adj, e, [(0,)]
+        gens = nw.graph_autgrp(_nauty_graph(k, adj))[0]
+        group = _closure(k, [tuple(g) for g in gens]) if gens else [tuple(range(k))]
+        return adj, e, group
+
+    def walk(adj: tuple[int, ...], e: int) -> Iterator[tuple[tuple[int, ...], int, list[tuple[int, ...]]]]:
+        if tick is not None:
+            tick()
+        item = node(adj, e)
+        got.append(item)
+        yield item
+        if len(adj) < kmax:
+            for new, e2, _ in _children(adj, e, kmax + 1, max_edges + 1, caps, 0, girth5, on_visit, 0):
+                yield from walk(new, e2)
+
+    yield from walk((0,), 0)
+    _CORES[key] = got
+    while len(_CORES) > _CORES_MAX:
+        del _CORES[next(iter(_CORES))]
+
+
+def _leafed(
+    n: int,
+    max_edges: int,
+    caps: tuple[int, ...],
+    min_edges: int,
+    girth5: bool,
+    on_visit: Callable[[int], None] | None,
+    min_leaves: int,
+    tick: Callable[[], None] | None,
+) -> Iterator[tuple[tuple[int, ...], list | None]]:  # type: ignore[type-arg]
+    """The graphs of :func:`_skeletons` (``n >= 3``) from their cores.
+
+    The core of a connected graph on three or more vertices is what is left
+    when every vertex of degree one is taken off; it is connected, and the
+    graph is the core with ``a_v`` leaves hung on each core vertex v, where
+    ``deg_core(v) + a_v >= 2`` (no core vertex is itself a leaf).  Graph and
+    (core, leaf counts up to the core's automorphisms) determine each other,
+    so every graph comes out once: each core once (canonical augmentation),
+    each leaf-count vector once per orbit of the core's group (the
+    lexicographically smallest).  At least ``min_leaves`` leaves means a
+    core of at most ``n - min_leaves`` vertices, so the augmentation tree
+    is walked that much less deep.  Vertices of degree one can only carry
+    atoms with cap 1 or more, core vertices only atoms with cap 2 or more.
+    """
+    inner = tuple(c for c in caps if c >= 2)
+    kmax = min(n - min_leaves, len(inner))
+    if kmax < 1 or caps[-1] < 1:  # an atom that cannot bond fits no connected graph
+        return
+    dmax = caps[0]
+    # the walk's own pruning: a k-vertex core with e edges needs
+    # e + (n - k) <= max_edges, i.e. e <= (max_edges - n + kmax) - (kmax - k)
+    walk_edges = max_edges - n + kmax
+    if walk_edges < 0:
+        return
+    import pynauty
+
+    nw = _nw()
+    for cadj, ce, group in _cores(kmax, walk_edges, inner[:kmax], girth5, on_visit, tick):
+        k = len(cadj)
+        nleaf = n - k
+        if ce + nleaf < min_edges or ce + nleaf > max_edges:
+            continue
+        cdeg = [a.bit_count() for a in cadj]
+        lo = [max(0, 2 - d) for d in cdeg]
+        hi = [dmax - d for d in cdeg]
+        if sum(lo) > nleaf or sum(hi) < nleaf:
+            continue
+        perms = [itemgetter(*p) for p in group[1:]] if k > 1 else []
+        # leaves (degree 1) take the smallest caps, so the graph fits its caps
+        # when the core vertices' degrees fit under the k largest
+        for a in _leaf_counts(lo, hi, nleaf, cdeg, caps[:k]):
+            if perms and any(p(a) < a for p in perms):
+                continue
+            adj = list(cadj)
+            w = k
+            for v, av in enumerate(a):
+                if av:
+                    bits = ((1 << av) - 1) << w
+                    adj[v] |= bits
+                    adj.extend([1 << v] * av)
+                    w += av
+            g = pynauty.Graph.__new__(pynauty.Graph)
+            g.number_of_vertices = n
+            g.directed = False
+            g._adjacency_dict = {v: _bits(adj[v]) for v in range(n)}
+            g._vertex_coloring = []
+            yield tuple(adj), nw.graph_autgrp(g)[0]
+
+
+def _leaf_counts(
+    lo: list[int], hi: list[int], total: int, cdeg: list[int], caps: tuple[int, ...]
+) -> Iterator[tuple[int, ...]]:
+    """Vectors a with lo <= a <= hi and sum ``total`` such that the degrees
+    ``cdeg[v] + a[v]``, sorted, fit under ``caps`` (deterministic order)."""
+    r = total - sum(lo)
+    if r < 0:
+        return
+    elig = [v for v in range(len(lo)) if hi[v] > lo[v]]
+    for combo in combinations_with_replacement(elig, r):
+        a = list(lo)
+        for v in combo:
+            a[v] += 1
+        if r > 1 and any(a[v] > hi[v] for v in combo):
+            continue
+        if all(d <= c for d, c in zip(sorted(map(add, cdeg, a), reverse=True), caps)):
+            yield tuple(a)
 
 
 def _fits(deg: list[int], caps: tuple[int, ...]) -> bool:

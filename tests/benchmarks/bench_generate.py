@@ -10,6 +10,10 @@ against references measured in the same run, which slow down with it:
 
 * ``ref`` -- the tests' brute-force enumerator (tests/_reference_isomers.py)
   on C6H6, best of three; ``count/ref`` is a count's time in those units;
+* ``full`` -- skeleton enumeration by canonical augmentation on all
+  vertices (``reference_skeletons``, the path used before leaf stripping) on
+  the same parameters; ``full/leaf`` is how many times faster the
+  leaf-stripped path makes the same skeletons;
 * ``W`` -- RDKit's own cost of writing canonical SMILES of ready molecules
   (MolToSmiles, best of three over the same molecules); ``write/W`` is the
   generator's own SMILES writing (structure_smiles on finished structures,
@@ -38,6 +42,7 @@ from rdkit import Chem  # noqa: E402
 
 from elucidate.generate import AtomSpec, FragmentSpec, Spec, Stats, count, generate  # noqa: E402
 from elucidate.generate import isomers as _isomers  # noqa: E402
+from elucidate.generate import skeletons as _skeletons  # noqa: E402
 from elucidate.generate.decorate import structure_smiles  # noqa: E402
 from elucidate.model import Formula  # noqa: E402
 
@@ -49,8 +54,9 @@ def F(text: str) -> Formula:
 
 
 def cold() -> None:
-    """Forget cached skeletons so each run pays for its own."""
+    """Forget cached skeletons and cores so each run pays for its own."""
     _isomers._skeleton_list.cache_clear()
+    _skeletons.cores_cache_clear()
 
 
 def best(fn, reps: int):  # type: ignore[no-untyped-def]
@@ -137,6 +143,29 @@ def main() -> None:
         sys.stdout.flush()
     ref1 = reference_time()
     print(f"references again at the end: ref {ref1:.3f} s (start/end {ref0 / ref1:.2f}: how much the machine's speed moved)")
+
+    print()
+    print("skeletons with leaf-only atoms (caps 1 = CH3/OH/halogen): leaf-stripped vs full augmentation")
+    print("  n  edges caps                           skeletons   leaf_s   full_s  full/leaf")
+    for caps, me in [
+        ((4, 4, 3, 3, 3, 3, 2, 2, 2, 1, 1), 14),  # C10H12O2-like fixed H, 2 leaves, 11 units
+        ((4, 4, 4, 3, 3, 3, 2, 2, 1, 1, 1), 12),  # 3 leaves (a methoxy, a methyl, an OH)
+        ((4, 4, 4, 3, 3, 2, 2, 1, 1, 1, 1, 1), 13),  # 5 leaves (isopropyl, tert-butyl-like)
+    ]:
+        nv, nl = len(caps), caps.count(1)
+
+        def leaf() -> int:
+            _skeletons.cores_cache_clear()
+            return sum(1 for _ in _skeletons.iter_skeletons(nv, me, caps, min_edges=nv - 1, min_leaves=nl))
+
+        def full() -> int:
+            return sum(1 for _ in _skeletons.reference_skeletons(nv, me, caps, min_edges=nv - 1, min_leaves=nl))
+
+        k1, t1 = best(leaf, 1)
+        k2, t2 = best(full, 1)
+        assert k1 == k2
+        print(f"  {nv:2d} {me:5d}  {str(caps):32s} {k1:9d} {t1:8.2f} {t2:8.2f} {t2 / t1:9.2f}")
+        sys.stdout.flush()
 
     print()
     print("solver-style: C9H10O2, monosubstituted benzene ring, H fixed per atom (CH2, CH3, C, O, O)")

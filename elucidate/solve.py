@@ -170,6 +170,7 @@ class _Run:
     warnings: list[str] = field(default_factory=list)
     hypotheses_complete: bool = True
     levels_run: list[int] = field(default_factory=list)
+    sentences: dict[int, str] = field(default_factory=dict)  # level index -> its listed relaxation
     full_models: int = 0
     progress: Callable[[str, int, int | None], None] | None = None
     evidence: tuple[Evidence, ...] = ()
@@ -364,6 +365,7 @@ def _search(run: _Run) -> tuple[_Run, list[_Entry]]:
                     )
                 break
             run.relaxed.append(sentence)
+            run.sentences[li] = sentence
         prev_level = level
         run.levels_run.append(li)
         level_start = time.monotonic()
@@ -729,7 +731,7 @@ def _candidate(entry: _Entry, rank: int, run: _Run) -> Candidate:
     notes = list(entry.fit.notes if entry.fit else ("ranked by its cheap bound only",))
     notes += entry.soft_notes
     if entry.level > 0:
-        notes.append(f"found only after relaxing: {LEVELS[entry.level].relaxation}")
+        notes.append(f"found only after relaxing: {run.sentences.get(entry.level, LEVELS[entry.level].relaxation)}")
     verdict = entry.fit.verdict if entry.fit else "poor fit"
     rows: tuple = ()
     if rank <= CHECKED_CANDIDATES and any(type(e).check_rows is not Evidence.check_rows for e in run.evidence):

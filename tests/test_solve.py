@@ -87,6 +87,10 @@ def test_relaxes_when_multiplicity_misreported():
     r = solve(load_problem(formula="C4H8O2", h1=h1), top=5)
     assert r.relaxed
     assert "CCOC(C)=O" in [c.smiles for c in r.candidates]
+    # a candidate found only after relaxing names the step as it was listed
+    steps = [n.removeprefix("found only after relaxing: ") for c in r.candidates for n in c.notes
+             if n.startswith("found only after relaxing: ")]
+    assert steps and all(step in r.relaxed for step in steps)
 
 
 def test_isobutyl_propanoate_worked_example():
@@ -137,6 +141,20 @@ def test_relaxation_reaches_the_formula_alone():
     result = solve(problem)
     assert any("every isomer of the formula" in step for step in result.relaxed)
     assert sorted(c.smiles for c in result.candidates) == ["CCO", "COC"]
+
+
+
+def test_a_relaxed_candidate_names_the_step_as_listed():
+    # Diethyl ether with its OCH2 quartet typed at 6.50 instead of 3.48 ppm
+    # (literature 3.48 q / 1.21 t in CDCl3, from memory): no H of a
+    # saturated C4H10O sits above 6.2 ppm (common practice), so the shift
+    # regions are turned into scores; the ether then found says so in the
+    # words listed in `relaxed`, naming the evidence dropped.
+    r = solve(load_problem(formula="C4H10O", h1="6.50 (q, J = 7.0 Hz, 4H), 1.20 (t, J = 7.0 Hz, 6H)"))
+    ether = next(c for c in r.candidates if c.smiles == "CCOCC")
+    note = next(n for n in ether.notes if n.startswith("found only after relaxing: "))
+    step = note.removeprefix("found only after relaxing: ")
+    assert step in r.relaxed and "shift-region" in step
 
 
 # ------------------------------------------------- ring substitution fragments

@@ -449,19 +449,11 @@ def _level_specs(
     for hyp in hset.hypotheses:
         h = hyp if level.neighbour_rules else hyp.without_neighbour_rules()
         for choice in choices:
-            groups = list(h.groups)
-            bare = dict(h.bare)
-            frags = []
-            ok = True
-            for match in choice:
-                carved = _carve(groups, bare, match)
-                if carved is None:
-                    ok = False
-                    break
-                groups, bare, frag, _ = carved
-                frags.append(FragmentSpec(frag[0], frag[1], frag[2]))
-            if not ok:
+            carved = _carve_choice(h, choice)
+            if carved is None:
                 continue
+            groups, bare, found, _ = carved
+            frags = [FragmentSpec(f[0], f[1], f[2]) for f in found]
             atoms = [AtomSpec(g.element, g.h_count, g.neighbour_h, _label(g, problem)) for g in groups]
             atoms += [AtomSpec(el, 0, None, "") for el, n in sorted(bare.items()) for _ in range(n)]
             spec = Spec(problem.formula, tuple(atoms), tuple(frags), tuple(problem.require), tuple(problem.forbid),
@@ -502,6 +494,23 @@ def _spec_key(spec: Any) -> tuple:
     frags = tuple(sorted((f.smiles, tuple(sorted((k, tuple(sorted(v))) for k, v in f.neighbour_h.items()))) for f in spec.fragments))
     checks = tuple(sorted(repr(c.evidence) for c in spec.checks))
     return atoms, frags, checks
+
+
+def _carve_choice(hyp: Hypothesis, choice: tuple[FragmentMatch, ...]):  # type: ignore[no-untyped-def]
+    """Carve every fragment of one choice out of a hypothesis, in order:
+    (groups left, bare atoms left, the fragments, the groups taken), or
+    None when the hypothesis cannot host them all."""
+    groups, bare = list(hyp.groups), dict(hyp.bare)
+    frags: list = []
+    taken: list[Group] = []
+    for match in choice:
+        carved = _carve(groups, bare, match)
+        if carved is None:
+            return None
+        groups, bare, frag, took = carved
+        frags.append(frag)
+        taken += took
+    return groups, bare, frags, taken
 
 
 def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
@@ -916,19 +925,10 @@ def _carved_hypotheses(hyp: Hypothesis, choices: list[tuple[FragmentMatch, ...]]
     generator: fragment atoms keep the union of their groups' neighbour rules."""
     out = []
     for choice in choices:
-        groups = list(hyp.groups)
-        bare = dict(hyp.bare)
-        carved_groups: list[Group] = []
-        ok = True
-        for match in choice:
-            carved = _carve(groups, bare, match)
-            if carved is None:
-                ok = False
-                break
-            groups, bare, _, taken = carved
-            carved_groups += taken
-        if ok:
-            out.append(Hypothesis(tuple(groups + carved_groups), hyp.bare, hyp.cost, hyp.readings))
+        carved = _carve_choice(hyp, choice)
+        if carved is not None:
+            groups, _, _, taken = carved
+            out.append(Hypothesis(tuple(groups + taken), hyp.bare, hyp.cost, hyp.readings))
     return out
 
 

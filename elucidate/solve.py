@@ -133,6 +133,9 @@ class _Tallied:
     def min_unsaturated_carbons(self, formula: Any) -> int:
         return self.evidence.min_unsaturated_carbons(formula)
 
+    def generator_options(self, options: Any) -> Any:
+        return self.evidence.generator_options(options)
+
     def admits_structure(self, st: Any) -> bool:
         if self.evidence.admits_structure(st):
             return True

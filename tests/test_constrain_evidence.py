@@ -13,11 +13,12 @@ from elucidate.constrain.evidence import (
     CarbonHCounts,
     CarbonLineCount,
     CarbonRegions,
+    CommonRings,
     Graph,
     ProtonRegions,
     read_evidence,
 )
-from elucidate.generate import Limits, Spec, count, generate
+from elucidate.generate import FragmentSpec, Limits, Spec, count, generate
 from elucidate.parse import load_problem, parse_formula
 from elucidate.solve import explain, solve
 
@@ -100,8 +101,47 @@ def test_proton_regions() -> None:
 def test_read_evidence_from_a_problem() -> None:
     p = load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13="171.1 (C), 60.4 (CH2), 21.0 (CH3), 14.2 (CH3)")
     ev = {e.key: e for e in read_evidence(p)}
-    assert set(ev) == {"c13-lines", "c13-regions", "dept"}
+    assert set(ev) == {"c13-lines", "c13-regions", "dept", "rings"}
     assert ev["dept"].group_bounds() == {3: (2, 2), 2: (1, 1), 1: (0, 0), 0: (1, 1)}
+
+
+# ------------------------------------------------------------ common rings
+
+
+@pytest.mark.parametrize(
+    "smiles, words",
+    [
+        ("c1ccc2ccccc2c1", None),  # naphthalene: two 6-rings
+        ("C1=CC=CC=CC=C1", None),  # cyclooctatetraene: an 8-ring is still common
+        ("C1CC2CCC1C2", None),  # norbornane: bridged, every bond on a 5- or 6-ring
+        ("O=C1CCCCCCCCCCCCCC1", "15-membered ring"),  # a macrocyclic musk ketone
+        ("C1CCC#CC1", "triple bond in a 6-membered ring"),
+        ("C1CCCCCCC#CCC1", "triple bond"),  # even in a large ring it is left out
+        ("C1=C=CCCC1", "cumulated double bonds"),  # cyclic allene
+        ("C=C=CC1CCCCC1", None),  # an allene outside the ring is not this rule's business
+    ],
+)
+def test_common_rings(smiles: str, words: str | None) -> None:
+    """Ring strain and ring size, common practice: cyclooctyne is the
+    smallest isolable cycloalkyne; rings above 8 atoms are rare in unknowns."""
+    got = CommonRings().reason(Graph.from_smiles(smiles))
+    assert (got is None) if words is None else (got is not None and words in got)
+
+
+@pytest.mark.parametrize(
+    "formula, fragments",
+    [
+        ("C9H14", ()),  # 9-rings, cyclononyne, cyclic allenes all occur
+        ("C9H12", ("*C#C*",)),  # a two-port fragment: the unit-graph ring bound must stay sound
+    ],
+)
+def test_common_rings_in_the_generator_match_a_plain_filter(formula: str, fragments: tuple[str, ...]) -> None:
+    frags = tuple(FragmentSpec(s) for s in fragments)
+    plain = list(generate(Spec(parse_formula(formula), fragments=frags)))
+    expected = sorted(s for s in plain if CommonRings().admits_smiles(s))
+    got = sorted(generate(Spec(parse_formula(formula), fragments=frags, checks=(CommonRings(),))))
+    assert got == expected
+    assert len(expected) < len(plain)
 
 
 # ------------------------------------------------ generator with the checks
@@ -153,3 +193,15 @@ def test_explain_names_the_13c_rule() -> None:
     assert not any("hard rule" in r for r in good.reasons)
     bad = explain(p, "CCCC(=O)O", time_limit_s=60)
     assert any("DEPT" in r for r in bad.reasons)
+
+
+def test_explain_names_the_ring_prior() -> None:
+    """Cyclodecane (C10H20, one 1H singlet, from memory ~1.5 ppm) is a
+    real compound outside the first levels: explain says which rule, and
+    the solver still reaches it once the ladder drops the prior."""
+    p = load_problem(formula="C10H20", h1="1.50 (s, 20H)")
+    why = explain(p, "C1CCCCCCCCC1", time_limit_s=60)
+    assert any("10-membered ring" in r for r in why.reasons)
+    r = solve(p, time_limit_s=60)
+    assert "C1CCCCCCCCC1" in [c.smiles for c in r.candidates]
+    assert any("common-ring" in step for step in r.relaxed)

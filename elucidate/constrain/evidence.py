@@ -39,6 +39,13 @@ The kinds:
 :class:`~elucidate.constrain.correlations.Correlations`
     HSQC, COSY and HMBC cross peaks (module
     :mod:`elucidate.constrain.correlations`).
+:class:`CommonRings`
+    Not read from a spectrum but a prior every search starts with: rings of
+    at most eight atoms, no triple bond and no cumulated double bonds in a
+    ring.  It tightens the generator's own options
+    (:meth:`Evidence.generator_options`), so macrocycles and strained
+    cycloalkynes are never built until the ladder drops it with the hard
+    fragments.
 
 Structures are seen through :class:`Graph`: heavy-atom symbols, H counts and
 bonds with Kekulé orders, from a generator structure or an RDKit molecule.
@@ -61,6 +68,7 @@ __all__ = [
     "CarbonRegions",
     "CarbonHCounts",
     "ProtonRegions",
+    "CommonRings",
     "Region",
     "read_evidence",
     "carbon_regions",
@@ -276,6 +284,13 @@ class Evidence:
         structure meeting this evidence has (the generator turns it into a cap
         on the number of rings: each multiple bond serves at most two carbons)."""
         return 0
+
+    def generator_options(self, options: Any) -> Any:
+        """Generator hook: the generator's :class:`~elucidate.generate.Options`
+        tightened to what this evidence allows (default: unchanged).  The
+        generator then never builds what the tighter options leave out, which
+        must all be structures :meth:`reason` turns down."""
+        return options
 
     def admits_structure(self, st: Any) -> bool:
         """Generator hook: does a finished generator structure meet it?"""
@@ -570,6 +585,116 @@ class ProtonRegions(Evidence):
         return None
 
 
+@dataclass(frozen=True, eq=True)
+class CommonRings(Evidence):
+    """Rings of common size and without strain the first levels search.
+
+    Every ring bond lies on a ring of at most ``max_ring`` atoms, and no
+    triple bond or carbon with two double bonds lies in a ring.  Sources
+    (common practice, from memory): cyclooctyne is the smallest cycloalkyne
+    that can be kept in a bottle and smaller cyclic allenes exist only as
+    reactive intermediates; unknowns with a ring of nine or more atoms
+    (macrolides, macrocyclic musks, crown ethers) are rare next to rings of
+    three to eight atoms.  It is a prior, not a reading of the data: the
+    ladder drops it with the hard fragments and says so, and ``explain``
+    names it.
+
+    Examples
+    --------
+    >>> ev = CommonRings()
+    >>> ev.reason(Graph.from_smiles("c1ccc2ccccc2c1")) is None
+    True
+    >>> ev.reason(Graph.from_smiles("C1CCCCCCCCC1"))
+    'has a 10-membered ring (the first levels search rings of at most 8 atoms)'
+    >>> ev.reason(Graph.from_smiles("C1CCC#CC1"))
+    'has a triple bond in a 6-membered ring (cycloalkynes are strained; even cyclooctyne, the smallest that can be isolated, is a reactive reagent)'
+    """
+
+    max_ring: int = 8
+    key = "rings"
+    title = "common rings"
+    tier = 2
+    relaxation = "the common-ring rule (rings of at most 8 atoms, no triple bond or C=C=C in a ring)"
+
+    def describe(self) -> str:
+        return (f"every ring of at most {self.max_ring} atoms, "
+                "no triple bond and no cumulated double bonds in a ring")
+
+    def generator_options(self, options: Any) -> Any:
+        from dataclasses import replace
+
+        limit = self.max_ring if options.max_ring_size is None else min(options.max_ring_size, self.max_ring)
+        # min_ring_triple above any ring size: no triple bond on a ring at all
+        return replace(options, max_ring_size=limit, min_ring_triple=max(options.min_ring_triple, _NO_RING))
+
+    def reason(self, graph: Graph) -> str | None:
+        return _ring_reason(len(graph.symbols), graph.symbols, graph.edges, graph.orders, self.max_ring)
+
+    def admits_structure(self, st: Any) -> bool:
+        symbols = tuple(lab.symbol for lab in st.labels)
+        return _ring_reason(len(symbols), symbols, st.edges, st.orders, self.max_ring) is None
+
+
+#: a ring size no structure reaches (the generator's "triple bonds only in
+#: rings of at least this size" becomes "in no ring")
+_NO_RING = 1000
+
+
+def _ring_reason(n: int, symbols: tuple[str, ...], edges: Any, orders: Any, max_ring: int) -> str | None:
+    """Why the bonds break :class:`CommonRings` (smallest ring per bond by a
+    breadth-first search with the bond taken out), or None."""
+    adj = [0] * n
+    for u, v in edges:
+        adj[u] |= 1 << v
+        adj[v] |= 1 << u
+    ring_atoms = 0
+    worst = 0
+    for (u, v), o in zip(edges, orders):
+        size = _smallest_ring(adj, u, v)
+        if not size:
+            continue
+        ring_atoms |= 1 << u | 1 << v
+        if o == 3:
+            return (f"has a triple bond in a {size}-membered ring (cycloalkynes are strained; even cyclooctyne, "
+                    "the smallest that can be isolated, is a reactive reagent)")
+        worst = max(worst, size)
+    if ring_atoms:
+        doubles = [0] * n
+        for (u, v), o in zip(edges, orders):
+            if o == 2:
+                doubles[u] += 1
+                doubles[v] += 1
+        for i in range(n):
+            if ring_atoms >> i & 1 and doubles[i] >= 2 and symbols[i] == "C":
+                return ("has cumulated double bonds at a ring carbon (cyclic allenes and ketenes of up to eight "
+                        "ring atoms are reactive intermediates)")
+    if worst > max_ring:
+        return f"has a {worst}-membered ring (the first levels search rings of at most {max_ring} atoms)"
+    return None
+
+
+def _smallest_ring(adj: list[int], u: int, v: int) -> int:
+    """Atoms in the smallest ring through bond u-v (0: a bridge)."""
+    seen = 1 << u
+    frontier = seen
+    d = 0
+    while frontier:
+        d += 1
+        nb = 0
+        f = frontier
+        while f:
+            b = f & -f
+            i = b.bit_length() - 1
+            nb |= adj[i] if i != u else adj[i] & ~(1 << v)
+            f ^= b
+        nb &= ~seen
+        if nb >> v & 1:
+            return d + 1
+        seen |= nb
+        frontier = nb
+    return 0
+
+
 # --------------------------------------------------------------- reading
 
 
@@ -581,7 +706,7 @@ def read_evidence(problem: Problem) -> tuple[Evidence, ...]:
     >>> from elucidate.parse import load_problem
     >>> p = load_problem(formula="C3H6O", h1="2.17 (s, 6H)", c13="206.6 (C), 30.8 (CH3)")
     >>> [e.key for e in read_evidence(p)]
-    ['c13-lines', 'c13-regions', 'dept']
+    ['c13-lines', 'c13-regions', 'dept', 'rings']
     """
     out: list[Evidence] = []
     c13 = problem.c13
@@ -602,6 +727,7 @@ def read_evidence(problem: Problem) -> tuple[Evidence, ...]:
     from elucidate.constrain.correlations import correlation_evidence
 
     out.extend(correlation_evidence(problem))
+    out.append(CommonRings())
     return tuple(out)
 
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import functools
 import time
+from dataclasses import replace
 from itertools import product
 from typing import Callable, Iterator
 
@@ -274,6 +275,26 @@ def _skeleton_stream(key: _SkeletonKey, tick: Callable[[], None] | None) -> Iter
     _skeleton_list.put(key, tuple(got))
 
 
+def _checked_options(spec: Spec) -> Spec:
+    """The spec with its options tightened by the checks that declare
+    ``generator_options(options)`` (the solver's ring prior does): what
+    they leave out is never built."""
+    o = spec.options
+    for c in spec.checks:
+        if hasattr(c, "generator_options"):
+            o = c.generator_options(o)
+    return spec if o == spec.options else replace(spec, options=o)
+
+
+def _unit_ring_bound(plan: FragmentPlan, max_ring: int | None) -> int | None:
+    """A ring-size cap that is sound on the unit graph: a ring passing a
+    fragment gadget (port, centre, port) is at most two vertices longer
+    there than through the fragment's own atoms (both ports on one atom)."""
+    if max_ring is None or not plan.units:
+        return max_ring
+    return max_ring + 2 * sum(k for frag, k in plan.classes if len(frag.ports) >= 2)
+
+
 def _work(
     spec: Spec, tick: Callable[[], None] | None = None
 ) -> tuple[list[Problem], Iterator[tuple[int, Skeleton]], FragmentPlan]:
@@ -283,13 +304,14 @@ def _work(
     probs = _problems(spec, plan)
     o = spec.options
     multiple = _min_multiple_bonds(spec, plan)
+    max_ring = _unit_ring_bound(plan, o.max_ring_size)
 
     def items() -> Iterator[tuple[int, Skeleton]]:
         for pi, prob in enumerate(probs):
             n = prob.n
             max_edges = prob.total_bs // 2 - plan.internal_extra - multiple
             girth5 = o.no_small_rings and not plan.units
-            key = (n, max_edges, prob.caps, girth5, None if plan.units else o.max_ring_size)
+            key = (n, max_edges, prob.caps, girth5, max_ring)
             for s in _skeleton_stream(key, tick):
                 yield pi, s
 
@@ -340,6 +362,7 @@ def _structures(
     tick = _ticker(deadline)
     max_n = limits.max_structures if limits is not None else None
     visit = [0]
+    spec = _checked_options(spec)
     try:
         probs, items, plan = _work(spec, tick)
         if part is not None:

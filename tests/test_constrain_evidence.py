@@ -11,6 +11,7 @@ import pytest
 
 from elucidate.constrain.evidence import (
     CarbonHCounts,
+    CarbonKinds,
     CarbonLineCount,
     CarbonRegions,
     CommonRings,
@@ -101,8 +102,67 @@ def test_proton_regions() -> None:
 def test_read_evidence_from_a_problem() -> None:
     p = load_problem(formula="C4H8O2", h1=ETHYL_ACETATE_H1, c13="171.1 (C), 60.4 (CH2), 21.0 (CH3), 14.2 (CH3)")
     ev = {e.key: e for e in read_evidence(p)}
-    assert set(ev) == {"c13-lines", "c13-regions", "dept", "rings"}
+    # four lines for four carbons: every carbon has its own line (c13-kinds)
+    assert set(ev) == {"c13-lines", "c13-regions", "dept", "c13-kinds", "rings"}
     assert ev["dept"].group_bounds() == {3: (2, 2), 2: (1, 1), 1: (0, 0), 0: (1, 1)}
+    # acetone, 206.6 and 30.8 (Gottlieb et al. 1997, from memory) without "(2C)":
+    # the lines do not account for all three carbons, so no c13-kinds
+    p = load_problem(formula="C3H6O", h1="2.17 (s, 6H)", c13="206.6, 30.8")
+    assert "c13-kinds" not in {e.key for e in read_evidence(p)}
+
+
+# ------------------------------------------------------------ carbon kinds
+
+# naproxen, CDCl3 (literature spectrum recalled from memory; the case
+# "naproxen" of tests/benchmarks/data/unknowns_large.toml)
+NAPROXEN_C13 = ("180.6 (C), 157.7 (C), 134.9 (C), 133.8 (C), 129.3 (CH), 128.9 (C), 127.2 (CH), 126.2 (CH), "
+                "126.1 (CH), 119.0 (CH), 105.6 (CH), 55.3 (CH3), 45.3 (CH), 18.1 (CH3)")
+
+
+def test_every_literature_carbon_lies_in_its_kinds_window() -> None:
+    """Each row of tests/benchmarks/data/shifts_13c.csv (literature 13C
+    shifts, source per row) lies inside the window data/c13_kinds.csv gives
+    its carbon's kind: the windows never turn down a measured carbon."""
+    import csv
+    from pathlib import Path
+
+    from rdkit import Chem
+
+    from elucidate.constrain.evidence import carbon_kind_names, carbon_kinds
+
+    table = carbon_kinds()
+    path = Path(__file__).parent / "benchmarks" / "data" / "shifts_13c.csv"
+    rows = list(csv.DictReader(path.open(encoding="utf-8")))
+    outside = []
+    for row in rows:
+        mol = Chem.MolFromSmiles(row["smiles"])
+        idx = next(a.GetIdx() for a in mol.GetAtoms() if a.GetAtomMapNum() == int(row["map"]))
+        for a in mol.GetAtoms():
+            a.SetAtomMapNum(0)
+        graph = Graph.from_smiles(Chem.MolToSmiles(mol))
+        pos = Chem.MolFromSmiles(Chem.MolToSmiles(mol)).GetSubstructMatch(mol)[idx]
+        kind = table[carbon_kind_names(graph)[pos]]
+        if not kind.lo <= float(row["shift"]) <= kind.hi:
+            outside.append((row["compound"], row["shift"], kind.kind))
+    assert len(rows) >= 800 and outside == []
+
+
+@pytest.mark.parametrize(
+    "smiles, words",
+    [
+        ("COc1ccc2cc(ccc2c1)C(C)C(=O)O", None),  # naproxen itself
+        # what a search without the rule ranked first (an acyclic enyne-allene):
+        # its inner alkyne carbon has no H and no C line lies at 55-110 ppm
+        ("C#CC(C(=C=CC)C=CC=O)C(=C=CO)OC", "alkyne carbon"),
+        # an isomer with a plain sp3 CH2 where the list has no CH2 line at all
+        ("COc1ccc2cc(ccc2c1)CCC(=O)O", "CH2"),
+    ],
+)
+def test_carbon_kinds_on_naproxen(smiles: str, words: str | None) -> None:
+    p = load_problem(formula="C14H14O3", h1="3.91 (s, 3H)", c13=NAPROXEN_C13)
+    ev = next(e for e in read_evidence(p) if e.key == "c13-kinds")
+    got = ev.reason(Graph.from_smiles(smiles))
+    assert (got is None) if words is None else (words in got), got
 
 
 # ------------------------------------------------------------ common rings
@@ -119,6 +179,15 @@ def test_read_evidence_from_a_problem() -> None:
         ("C1CCCCCCC#CCC1", "triple bond"),  # even in a large ring it is left out
         ("C1=C=CCCC1", "cumulated double bonds"),  # cyclic allene
         ("C=C=CC1CCCCC1", None),  # an allene outside the ring is not this rule's business
+        # fused and peri-fused aromatics join ring atoms ortho only (common practice)
+        ("c1cc2ccc3cccc4ccc(c1)c2c34", None),  # pyrene
+        ("c1cc2cccc3c2c(c1)CC3", None),  # acenaphthene
+        ("c1ccc-2c(c1)-c1cccc3cccc-2c13", None),  # fluoranthene
+        ("COc1ccc2ccc(=O)oc2c1", None),  # herniarin (7-methoxycoumarin)
+        # a para-bridged 7-methoxycoumarin isomer a search ranked above herniarin
+        ("COc1cc2ccc1C(=O)OC=C2", "para positions"),
+        ("C1CCc2cccc(c2)C1", "meta positions"),  # [5]metacyclophane
+        ("C1=CC2=CC=C1CC2", "para positions"),  # [2]paracyclophane
     ],
 )
 def test_common_rings(smiles: str, words: str | None) -> None:
@@ -159,7 +228,7 @@ def test_generator_checks_match_a_plain_filter(formula: str, c13: str) -> None:
     """Checks (and the ring cap they imply) remove exactly the structures
     that fail them: compared with filtering the plain stream by hand."""
     f = parse_formula(formula)
-    ev = (CarbonLineCount(len(c13.split(",")), False), CarbonRegions(lines(c13)))
+    ev = (CarbonLineCount(len(c13.split(",")), False), CarbonRegions(lines(c13)), CarbonKinds(lines(c13)))
     plain = list(generate(Spec(f)))
     expected = sorted(s for s in plain if all(e.admits_smiles(s) for e in ev))
     got = sorted(generate(Spec(f, checks=ev)))

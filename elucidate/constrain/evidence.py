@@ -42,7 +42,8 @@ The kinds:
 :class:`CommonRings`
     Not read from a spectrum but a prior every search starts with: rings of
     at most eight atoms, no triple bond and no cumulated double bonds in a
-    ring.  It tightens the generator's own options
+    ring, and no benzene-type ring bridged across meta or para positions
+    (a cyclophane).  It tightens the generator's own options
     (:meth:`Evidence.generator_options`), so macrocycles and strained
     cycloalkynes are never built until the ladder drops it with the hard
     fragments.
@@ -69,6 +70,9 @@ __all__ = [
     "CarbonHCounts",
     "ProtonRegions",
     "CommonRings",
+    "CarbonKinds",
+    "carbon_kinds",
+    "carbon_kind_names",
     "Region",
     "read_evidence",
     "carbon_regions",
@@ -504,6 +508,170 @@ def _matching(options: list[list[int]], n: int) -> bool:
     return True
 
 
+@dataclass(frozen=True)
+class Kind:
+    """A kind of carbon and the 13C window it reaches (one row of
+    ``data/c13_kinds.csv``)."""
+
+    kind: str
+    lo: float
+    hi: float
+    words: str
+    source: str
+
+
+@functools.cache
+def carbon_kinds() -> dict[str, Kind]:
+    """Carbon kinds and their 13C windows (``data/c13_kinds.csv``), loaded once."""
+    text = resources.files("elucidate.constrain").joinpath("data/c13_kinds.csv").read_text(encoding="utf-8")
+    out = {}
+    for row in csv.DictReader(text.splitlines()):
+        out[row["kind"]] = Kind(row["kind"], float(row["lo"]), float(row["hi"]), row["words"], row["source"])
+    missing = set(_KIND_NAMES) - set(out)
+    if missing:
+        raise ValueError(f"constrain/data/c13_kinds.csv: no row for kind(s) {sorted(missing)}")
+    return out
+
+
+_KIND_NAMES = ("sp3", "sp3_x", "alkyne", "alkyne_x", "nitrile", "allene_centre", "cumulene_x", "allene_end",
+               "ketene_end", "c_eq_o", "c_eq_s", "c_eq_n", "sp2", "sp2_x")
+
+
+def carbon_kind_names(graph: Graph) -> dict[int, str]:
+    """The kind (a row of ``data/c13_kinds.csv``) of every carbon, from its
+    Kekulé bonds: hybridisation, the partner of its multiple bond and
+    whether a heteroatom (anything but C) sits on either end of it.
+
+    Examples
+    --------
+    >>> g = Graph.from_smiles("C#CC(=O)OC")
+    >>> [carbon_kind_names(g)[i] for i in sorted(carbon_kind_names(g))]
+    ['alkyne', 'alkyne', 'c_eq_o', 'sp3_x']
+    """
+    n = len(graph.symbols)
+    sym = graph.symbols
+    nbrs: list[list[tuple[int, int]]] = [[] for _ in range(n)]
+    for (u, v), o in zip(graph.edges, graph.orders):
+        nbrs[u].append((v, o))
+        nbrs[v].append((u, o))
+    hetero = [any(sym[w] != "C" for w, _ in nbrs[i]) for i in range(n)]
+    doubles = [[w for w, o in nbrs[i] if o == 2] for i in range(n)]
+    out: dict[int, str] = {}
+    for i in range(n):
+        if sym[i] != "C":
+            continue
+        triple = [w for w, o in nbrs[i] if o == 3]
+        dbl = doubles[i]
+        if triple:
+            w = triple[0]
+            if sym[w] == "N":
+                out[i] = "nitrile"
+            elif sym[w] != "C" or hetero[i] or hetero[w]:
+                out[i] = "alkyne_x"
+            else:
+                out[i] = "alkyne"
+        elif len(dbl) >= 2:
+            out[i] = "allene_centre" if all(sym[w] == "C" for w in dbl) else "cumulene_x"
+        elif dbl:
+            w = dbl[0]
+            if sym[w] == "O":
+                out[i] = "c_eq_o"
+            elif sym[w] == "S":
+                out[i] = "c_eq_s"
+            elif sym[w] != "C":
+                out[i] = "c_eq_n"
+            elif len(doubles[w]) >= 2:
+                centre_x = any(sym[x] != "C" for x in doubles[w])
+                out[i] = "ketene_end" if centre_x else "allene_end"
+            else:
+                out[i] = "sp2_x" if hetero[i] or hetero[w] else "sp2"
+        else:
+            out[i] = "sp3_x" if hetero[i] else "sp3"
+    return out
+
+
+@dataclass(frozen=True, eq=True)
+class CarbonKinds(Evidence):
+    """Every carbon gets a 13C line its kind can reach (complete lists only).
+
+    Used when the lines account for every carbon of the formula (their
+    carbon counts, one per line unless ``(2C)`` is written, add up to it):
+    then each carbon has a line of its own, at a shift its kind reaches
+    (``data/c13_kinds.csv``: a C#C carbon 55-110 ppm, an allene centre
+    140-235, a C=O carbon 140-245, a plain sp3 carbon below 72, ...) and
+    with the H count the line's DEPT label gives.  A bipartite matching
+    of carbons to line slots decides.  This is the converse of
+    :class:`CarbonRegions` (which asks that each line find a carbon): it
+    turns down alkynes, allenes and sp3 carbons the spectrum has no line
+    for.
+
+    ``lines``: (shift, carbons, attached_h or -1) per observed line.
+
+    Examples
+    --------
+    >>> ev = CarbonKinds(lines=((206.6, 1, 0), (30.8, 2, 3)))
+    >>> ev.reason(Graph.from_smiles("CC(C)=O")) is None
+    True
+    >>> ev.reason(Graph.from_smiles("C#CC"))  # doctest: +ELLIPSIS
+    'has an alkyne carbon (C#C) with no heteroatom on either end (1 H), which needs a 13C line at 55-110 ppm labelled CH; ...'
+    """
+
+    lines: tuple[tuple[float, int, int], ...] = ()
+    key = "c13-kinds"
+    title = "a 13C line for every carbon"
+    tier = 1
+    relaxation = "13C line for every carbon"
+
+    def describe(self) -> str:
+        return ("every carbon has its own line in the complete 13C list, at a shift its kind reaches "
+                "(C#C 55-110, C=C 85-185, C=O 140-245, plain sp3 below 72 ppm, ...) and with its DEPT label")
+
+    @functools.cached_property
+    def _slots(self) -> tuple[tuple[float, int], ...]:
+        out: list[tuple[float, int]] = []
+        for shift, n, h in self.lines:
+            out += [(shift, h)] * max(1, n)
+        return tuple(out)
+
+    def reason(self, graph: Graph) -> str | None:
+        kinds = carbon_kind_names(graph)
+        table = carbon_kinds()
+        slots = self._slots
+        if len(kinds) != len(slots):
+            return None  # not the structure's formula (checked elsewhere)
+        options = []
+        order = sorted(kinds)
+        for i in order:
+            k = table[kinds[i]]
+            h = graph.hs[i]
+            options.append([j for j, (s, lh) in enumerate(slots) if k.lo <= s <= k.hi and (lh < 0 or lh == h)])
+        if _matching(options, len(slots)):
+            return None
+        return self._words(graph, kinds, order, options, table)
+
+    def _words(self, graph: Graph, kinds: dict[int, str], order: list[int], options: list[list[int]],
+               table: dict[str, Kind]) -> str:
+        dept = all(lh >= 0 for _, lh in self._slots)
+        for i, opts in zip(order, options):
+            if not opts:
+                k = table[kinds[i]]
+                label = f" labelled {_DEPT_WORD[graph.hs[i]]}" if dept else ""
+                return (f"has {k.words} ({graph.hs[i]} H), which needs a 13C line at {k.lo:g}-{k.hi:g} ppm{label}; "
+                        "the complete list has none")
+        # Hall's condition fails for a group of carbons of one kind and H count
+        groups: dict[tuple[str, int], list[int]] = {}
+        for idx, i in enumerate(order):
+            groups.setdefault((kinds[i], graph.hs[i]), []).append(idx)
+        for (kind, h), members in sorted(groups.items()):
+            free = set().union(*(options[m] for m in members))
+            if len(free) < len(members):
+                k = table[kind]
+                shifts = sorted({self._slots[j][0] for j in free}, reverse=True)
+                return (f"has {len(members)} carbons of one kind ({k.words}, {h} H) needing 13C lines at "
+                        f"{k.lo:g}-{k.hi:g} ppm, but only {len(free)} line slot(s) fit ({_fmt(shifts)})")
+        return "its carbons cannot each be given a 13C line their kind and DEPT label allow"
+
+
 @dataclass(frozen=True, eq=True)
 class CarbonHCounts(Evidence):
     """How many carbons carry 3, 2, 1 and 0 H, from DEPT/APT labels.
@@ -670,7 +838,89 @@ def _ring_reason(n: int, symbols: tuple[str, ...], edges: Any, orders: Any, max_
                         "ring atoms are reactive intermediates)")
     if worst > max_ring:
         return f"has a {worst}-membered ring (the first levels search rings of at most {max_ring} atoms)"
+    if ring_atoms and sum(1 for o in orders if o == 2) >= 3:
+        bridge = _bridged_benzene(n, adj, edges, orders, ring_atoms)
+        if bridge:
+            return (f"has a benzene-type ring bridged across its {bridge} positions (fused rings share an ortho "
+                    "pair; a short meta or para bridge is a strained cyclophane)")
     return None
+
+
+#: most atoms in a bridge across meta or para ring positions that counts as
+#: a strained cyclophane: [5]metacyclophane and [4]paracyclophane are
+#: laboratory curiosities (common practice, from memory); the shortest
+#: meta path around a peri-fused system is longer (acenaphthene 6, pyrene
+#: and phenalene 7 atoms), and longer bridges make rings the ring-size
+#: rule already weighs
+_SHORT_BRIDGE = 5
+
+
+def _bridged_benzene(n: int, adj: list[int], edges: Any, orders: Any, ring_atoms: int) -> str | None:
+    """'meta' or 'para' when a six-ring with three ring double bonds (a
+    benzene or azine ring in Kekulé form) has two non-adjacent atoms joined
+    by a short path outside the ring, else None.  Fused aromatics join an
+    ortho pair only (common practice)."""
+    double = {(u, v) for (u, v), o in zip(edges, orders) if o == 2}
+    double |= {(v, u) for u, v in double}
+    for ring in _six_rings(n, [a & ring_atoms for a in adj]):
+        bonds = [(ring[k], ring[(k + 1) % 6]) for k in range(6)]
+        if sum(1 for b in bonds if b in double) != 3:
+            continue
+        inside = 0
+        for a in ring:
+            inside |= 1 << a
+        for k in range(6):
+            for gap, word in ((2, "meta"), (3, "para")):
+                a, b = ring[k], ring[(k + gap) % 6]
+                if gap == 3 and k >= 3:
+                    continue
+                if _joined_outside(adj, a, b, inside, _SHORT_BRIDGE):
+                    return word
+    return None
+
+
+def _joined_outside(adj: list[int], a: int, b: int, inside: int, most: int) -> bool:
+    """Is there a path a -> ... -> b of at most ``most`` inner atoms, all
+    outside ``inside``?"""
+    frontier = adj[a] & ~inside
+    seen = frontier | inside
+    depth = 1
+    while frontier and depth <= most:
+        nb = 0
+        f = frontier
+        while f:
+            bit = f & -f
+            i = bit.bit_length() - 1
+            if adj[i] >> b & 1:
+                return True
+            nb |= adj[i]
+            f ^= bit
+        frontier = nb & ~seen
+        seen |= frontier
+        depth += 1
+    return False
+
+
+def _six_rings(n: int, adj: list[int]) -> list[tuple[int, ...]]:
+    """Every simple cycle of six atoms, once each (smallest atom first)."""
+    out = []
+    for s in range(n):
+        def walk(path: list[int], used: int) -> None:
+            last = path[-1]
+            if len(path) == 6:
+                if adj[last] >> s & 1 and path[1] < path[5]:
+                    out.append(tuple(path))
+                return
+            nb = adj[last] & ~used & ~((1 << (s + 1)) - 1)
+            while nb:
+                bit = nb & -nb
+                i = bit.bit_length() - 1
+                path.append(i)
+                walk(path, used | bit)
+                path.pop()
+                nb ^= bit
+        walk([s], 1 << s)
+    return out
 
 
 def _smallest_ring(adj: list[int], u: int, v: int) -> int:
@@ -717,6 +967,8 @@ def read_evidence(problem: Problem) -> tuple[Evidence, ...]:
         dept = _dept_bounds(problem)
         if dept:
             out.append(CarbonHCounts(dept))
+        if sum(c.carbons for c in c13) == problem.formula["C"]:
+            out.append(CarbonKinds(lines))
     needs = []
     for i, region in enumerate(proton_regions()):
         hits = [s for s in problem.h1 if s.shift_low >= region.lo]

@@ -521,6 +521,9 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
     groups = list(groups)
     bare = dict(bare)
     allowed = set(match.signals)
+    # a fragment owning only part of a signal's H (rings sharing a
+    # multiplet) takes groups up to its share of each signal
+    left = dict(match.shares) if match.shares else None
     picked: dict[tuple[str, int], list[tuple[int, Group]]] = {}
     for idx, (el, h) in enumerate(fragment_atoms(match.rule.smiles)):
         if h == 0:
@@ -530,11 +533,14 @@ def _carve(groups: list[Group], bare: dict[str, int], match: FragmentMatch):
             continue
         pick = next(
             (g for g in groups if g.element == el and g.h_count == h and g.signals
-             and set(g.signals) <= allowed and g.kind != "CH2 (split)"),
+             and set(g.signals) <= allowed and g.kind != "CH2 (split)"
+             and (left is None or (len(g.signals) == 1 and left.get(g.signals[0], 0) >= h))),
             None,
         )
         if pick is None:
             return None
+        if left is not None:
+            left[pick.signals[0]] -= h
         groups.remove(pick)
         picked.setdefault((el, h), []).append((idx, pick))
     # Which fragment atom stands for which signal is not known (ortho vs para

@@ -225,3 +225,48 @@ def test_ring_file_errors_name_the_file(tmp_path, monkeypatch):
            "ring": {"window": [6, 9], "h": 4, "classes": {"o": [7, 9]}, "positions": ["o", "oo", "x", "o"]}}
     with pytest.raises(InputError, match="bad.toml: \\[ring\\] positions"):
         fr._rule("bad", bad)
+
+
+# ------------------------------------------------ several rings in one window
+
+
+def ring_sets(formula_text, h1):
+    ms = match_fragments(load_problem(formula=formula_text, h1=h1))
+    return [m for m in ms if "(ring" in m.rule.family]
+
+
+def test_two_phenyls_from_one_multiplet():
+    # benzyl (E)-cinnamate, CDCl3 (literature spectrum recalled from memory;
+    # case of tests/benchmarks/data/unknowns_large.toml): ten ring H in one
+    # multiplet, the alkene H (J 16 Hz) are no ring H; 16 carbons hold two
+    # benzene rings but not three, so the ten H are two phenyls
+    got = ring_sets("C16H14O2", "7.72 (d, J = 16.0 Hz, 1H), 7.55-7.30 (m, 10H), "
+                    "6.49 (d, J = 16.0 Hz, 1H), 5.26 (s, 2H)")
+    assert [(m.rule.key, m.rule.strength) for m in got] == [("benzene_mono", "hard")] * 2
+    assert len({m.rule.family for m in got}) == 2  # two copies, not alternatives of each other
+
+
+def test_phenyl_and_a_second_ring_share_a_multiplet():
+    # 4-chlorobenzophenone, CDCl3 (from memory): 4H + 1H + 4H; one phenyl and
+    # a 4H ring whose pattern the multiplets leave open (ortho, meta, para)
+    got = ring_sets("C13H9ClO", "7.78-7.73 (m, 4H), 7.59 (tt, J = 7.4, 1.3 Hz, 1H), 7.51-7.43 (m, 4H)")
+    other = sorted(m.rule.key for m in got if m.rule.key != "benzene_mono")
+    assert other == ["benzene_meta", "benzene_ortho", "benzene_para"]
+    assert sum(1 for m in got if m.rule.key == "benzene_mono") == 1
+    # the second ring owns exactly four of the nine H, the phenyl the rest
+    assert all(sum(h for _, h in m.shares) == 4 for m in got if m.rule.key != "benzene_mono")
+
+
+def test_two_rings_that_may_be_one_fused_system_claim_nothing():
+    # 2-methoxynaphthalene (nerolin), CDCl3 (from memory): seven ring H that
+    # two separate rings (4H + 3H) would also fit; the halves of a
+    # naphthalene share two carbons, so no pair of disjoint rings is claimed
+    got = ring_sets("C11H10O", "7.78-7.71 (m, 3H), 7.43 (t, J = 7.5 Hz, 1H), 7.33 (t, J = 7.4 Hz, 1H), "
+                    "7.17-7.12 (m, 2H), 3.92 (s, 3H)")
+    assert got == []
+
+
+def test_rings_the_formula_cannot_hold_claim_nothing():
+    # construction: ten ring H but only eleven carbons: two benzene rings do
+    # not fit, so the window is not read as rings at all
+    assert ring_sets("C11H12O", "7.50-7.20 (m, 10H), 2.10 (s, 2H)") == []

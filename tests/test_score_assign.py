@@ -199,3 +199,15 @@ def test_unusual_groups(smiles, expected):
     else:
         assert cost == expected
         assert bool(notes) == (expected > 0)
+
+
+def test_small_long_range_j_is_not_held_against_a_vicinal_prediction():
+    # para H of a benzoyl group: tt, J = 7.4 (two ortho H), 1.3 Hz (two meta
+    # H, 4J; common practice: aromatic meta J 1-3 Hz).  The prediction counts
+    # vicinal partners only (a triplet), so the tt must fit it as well as a t
+    from elucidate.score.assign import _mult_steps
+
+    e = env(0, [0], 1, 7.55, "t", "ArH para")
+    assert _mult_steps(e, sig(7.59, "tt", 1, [7.4, 1.3])) == (0.0, 0)
+    # a large second J is a real vicinal partner the prediction misses
+    assert _mult_steps(e, sig(7.59, "td", 1, [7.4, 5.0]))[1] > 0

@@ -533,7 +533,8 @@ def carbon_kinds() -> dict[str, Kind]:
     return out
 
 
-_KIND_NAMES = ("sp3", "sp3_x", "alkyne", "alkyne_x", "nitrile", "allene_centre", "cumulene_x", "allene_end",
+_KIND_NAMES = ("sp3", "sp3_x", "alkyne", "alkyne_x", "nitrile", "allene_centre", "cumulene_inner", "cumulene_x",
+               "allene_end",
                "ketene_end", "c_eq_o", "c_eq_s", "c_eq_n", "sp2", "sp2_x")
 
 
@@ -571,7 +572,10 @@ def carbon_kind_names(graph: Graph) -> dict[int, str]:
             else:
                 out[i] = "alkyne"
         elif len(dbl) >= 2:
-            out[i] = "allene_centre" if all(sym[w] == "C" for w in dbl) else "cumulene_x"
+            if not all(sym[w] == "C" for w in dbl):
+                out[i] = "cumulene_x"
+            else:
+                out[i] = "cumulene_inner" if any(len(doubles[w]) >= 2 for w in dbl) else "allene_centre"
         elif dbl:
             w = dbl[0]
             if sym[w] == "O":

@@ -251,6 +251,9 @@ class FragmentMatch:
 
     rule: FragmentRule
     signals: tuple[int, ...]
+    #: (signal, H) pairs when the fragment owns only part of a signal's H
+    #: (rings sharing an overlapped multiplet); empty: all H of ``signals``
+    shares: tuple[tuple[int, int], ...] = ()
 
     def describe(self) -> str:
         return f"{self.rule.name} ({self.rule.strength}; {self.rule.source})"
@@ -402,7 +405,125 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
         if picked is None:
             continue
         out.append(FragmentMatch(rule, tuple(sorted(set(used) | set(picked)))))
+    out += _ring_sets(problem, rules)
     return _soften_families(out)
+
+
+#: the family whose rules read one aromatic ring from the 1H list
+RING_FAMILY = "aromatic ring substitution"
+#: most rings one ring-H window is read as
+_MAX_RINGS = 3
+
+
+def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[FragmentMatch]:
+    """More ring H than one ring holds: read the window as several rings.
+
+    Every sharp signal of the ring window is a ring H (as for one ring);
+    their H are shared out among two or three rings of the ring family, a
+    signal's H possibly among several rings (two equivalent phenyls give
+    one 4H doublet; an overlapped multiplet holds H of both rings), so that
+    each ring's share fits its pattern.  The reading is kept only when every
+    way that fits the formula (ring carbons, nitrogens, DoU) is
+    monosubstituted benzene rings plus at most one other ring: a phenyl is
+    never fused, so the rings are disjoint; two other rings might be the
+    halves of one fused system (naphthalene, quinoline), which no
+    alternative here describes, and nothing is claimed.
+
+    Returned: one hard-or-soft match per phenyl, each its own family, and,
+    when there is another ring, its alternatives as one family, first (its
+    shares are exact; the phenyls take the ring H it leaves).
+    """
+    f = problem.formula
+    ring_rules = [
+        r for r in rules
+        if r.ring is not None and r.family == RING_FAMILY and f["C"] >= r.min_carbons
+        and not any(f[el] == 0 for el in r.elements) and not any(f[el] > 0 for el in r.no_elements)
+    ]
+    mono = next((r for r in ring_rules if len(r.ring.positions) == 5 and r.smiles.count("*") == 1), None)
+    if mono is None:
+        return []
+    lo, hi = mono.ring.window
+    signals = problem.h1
+    inside = [
+        i for i, s in enumerate(signals)
+        if lo <= s.shift <= hi and not s.broad and not any(j >= mono.ring.not_ring_above for j in s.couplings)
+    ]
+    total = sum(round(signals[i].h_count) for i in inside)
+    if total <= max(r.ring.h for r in ring_rules):
+        return []
+    feasible: list[tuple[tuple[FragmentRule, ...], list[dict[int, int]]]] = []
+    for k in range(2, _MAX_RINGS + 1):
+        for combo in itertools.combinations_with_replacement(ring_rules, k):
+            if sum(r.ring.h for r in combo) != total or not _budget_ok(combo, f):
+                continue
+            shares = _share_out(signals, inside, combo)
+            if shares is not None:
+                feasible.append((combo, shares))
+    if not feasible or any(sum(1 for r in combo if r is not mono) > 1 for combo, _ in feasible):
+        return []
+    # the ring H total fixes the number of phenyls (5 per ring): every
+    # feasible way has the same phenyls and the same number of other rings
+    out: list[FragmentMatch] = []
+    for combo, shares in feasible:
+        for rule, share in zip(combo, shares):
+            if rule is not mono:
+                fam = dataclasses.replace(rule, family=f"{RING_FAMILY} (ring 1)")
+                out.append(FragmentMatch(fam, tuple(sorted(share)), tuple(sorted(share.items()))))
+    phenyls = sum(1 for r in feasible[0][0] if r is mono)
+    for n in range(phenyls):
+        fam = dataclasses.replace(mono, family=f"{RING_FAMILY} (ring {n + 2})")
+        out.append(FragmentMatch(fam, tuple(sorted(inside))))
+    return out
+
+
+def _budget_ok(combo: tuple[FragmentRule, ...], f) -> bool:  # type: ignore[no-untyped-def]
+    """Do the formula's carbons, nitrogens and DoU hold these disjoint rings?"""
+    atoms = Counter()
+    for r in combo:
+        for el, _ in fragment_atoms(r.smiles):
+            atoms[el] += 1
+    return all(f[el] >= n for el, n in atoms.items()) and f.dou >= 4 * len(combo)
+
+
+def _share_out(signals: tuple[H1Signal, ...], inside: list[int],
+               combo: tuple[FragmentRule, ...]) -> list[dict[int, int]] | None:
+    """One way to share the inside signals' H among the rings so that each
+    ring's share fits its pattern (signal -> H per ring), or None."""
+    k = len(combo)
+    need = [r.ring.h for r in combo]
+    order = sorted(inside, key=lambda i: -round(signals[i].h_count))
+    shares: list[dict[int, int]] = [{} for _ in range(k)]
+
+    def split(n: int, j: int, room: list[int]):  # type: ignore[no-untyped-def]
+        # every way to give n H to rings j..k-1 within their room
+        if j == k - 1:
+            if n <= room[j]:
+                yield (n,)
+            return
+        for a in range(min(n, room[j]), -1, -1):
+            for rest in split(n - a, j + 1, room):
+                yield (a, *rest)
+
+    def go(t: int, room: list[int]) -> bool:
+        if t == len(order):
+            for j, rule in enumerate(combo):
+                sub = tuple(dataclasses.replace(signals[i], h_count=float(h)) for i, h in sorted(shares[j].items()))
+                if _ring_match(sub, rule.ring) is None:
+                    return False
+            return True
+        i = order[t]
+        n = round(signals[i].h_count)
+        for parts in split(n, 0, room):
+            for j, a in enumerate(parts):
+                if a:
+                    shares[j][i] = a
+            if go(t + 1, [r - a for r, a in zip(room, parts)]):
+                return True
+            for j, a in enumerate(parts):
+                shares[j].pop(i, None)
+        return False
+
+    return [dict(s) for s in shares] if go(0, need) else None
 
 
 def _soften_families(matches: list[FragmentMatch]) -> list[FragmentMatch]:

@@ -119,11 +119,25 @@ def _mult_steps(env: Environment, s: H1Signal) -> tuple[float, int]:
     pred = multiplicity_pattern(env.multiplicity)
     if pred is None:
         return 1.0, 0  # predicted a multiplet, observed first order: shape only
+    best = _steps(obs, pred)
+    # the prediction counts vicinal (3J) partners only; a resolved small J
+    # (4J: aromatic meta, allylic, W couplings, 0-3 Hz, common practice) is
+    # one it never shows, so the pattern without it is compared too
+    if s.couplings and len(s.couplings) == len(obs) and any(j < LONG_RANGE_J for j in s.couplings):
+        vicinal = tuple(k for k, j in zip(obs, s.couplings) if j >= LONG_RANGE_J) or (1,)
+        best = min(best, _steps(vicinal, pred))
+    return best
+
+
+#: J (Hz) below which an observed splitting is taken for a long-range one
+LONG_RANGE_J = 2.2
+
+
+def _steps(obs: tuple[int, ...], pred: tuple[int, ...]) -> tuple[float, int]:
     n_obs = sum(k - 1 for k in obs)
     n_pred = sum(k - 1 for k in pred)
-    steps = abs(n_obs - n_pred)
     shape = 0.0 if tuple(sorted(obs)) == tuple(sorted(pred)) else 1.0
-    return shape, min(steps, 4)
+    return shape, min(abs(n_obs - n_pred), 4)
 
 
 def _pair_cost(env: Environment, s: H1Signal, w: Weights) -> float:

@@ -729,6 +729,13 @@ def _fragment_query(smiles: str) -> Any:
             arom = "a" if atom.GetIsAromatic() else "A"
             qa = Chem.AtomFromSmarts(f"[#{atom.GetAtomicNum()};{arom};H{atom.GetTotalNumHs()}]")
         query.ReplaceAtom(atom.GetIdx(), qa)
+    # a port bond is single in the fragment, but the generator may close it
+    # into a fused aromatic ring (a benzo ring of an indole or benzofuran is
+    # a 1,2-disubstituted benzene fragment), where RDKit reads it aromatic
+    port_bond = Chem.BondFromSmarts("-,:")
+    for bond in mol.GetBonds():
+        if 0 in (bond.GetBeginAtom().GetAtomicNum(), bond.GetEndAtom().GetAtomicNum()):
+            query.ReplaceBond(bond.GetIdx(), port_bond)
     _QUERIES[smiles] = query.GetMol()
     return _QUERIES[smiles]
 

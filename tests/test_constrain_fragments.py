@@ -180,10 +180,13 @@ RING_CASES = [
      "7.41 (d, J = 7.4 Hz, 2H), 7.33 (t, J = 7.5 Hz, 2H), 7.26 (t, J = 7.2 Hz, 1H), "
      "6.72 (dd, J = 17.6, 10.9 Hz, 1H), 5.75 (d, J = 17.6 Hz, 1H), 5.24 (d, J = 10.9 Hz, 1H)",
      ["benzene_mono"]),
-    ("indole-type 1H singlet", "C8H7N",  # construction: a 1H singlet among five ring H has no ortho partner
+    # construction: a 1H singlet among five ring H has no ortho partner, so
+    # the five are no single ring; read as a non-ring H (an indole H-2) it
+    # leaves four H of a 1,2-disubstituted (benzo) ring
+    ("indole-type 1H singlet", "C8H7N",
      "7.65 (d, J = 7.9 Hz, 1H), 7.38 (d, J = 8.1 Hz, 1H), 7.20 (t, J = 7.6 Hz, 1H), 7.12 (t, J = 7.5 Hz, 1H), "
      "7.05 (s, 1H), 6.55 (br s, 1H), 2.20 (s, 1H)",
-     []),
+     ["benzene_ortho"]),
 ]
 
 
@@ -270,3 +273,26 @@ def test_rings_the_formula_cannot_hold_claim_nothing():
     # construction: ten ring H but only eleven carbons: two benzene rings do
     # not fit, so the window is not read as rings at all
     assert ring_sets("C11H12O", "7.50-7.20 (m, 10H), 2.10 (s, 2H)") == []
+
+
+def test_a_singlet_in_the_window_may_be_an_alkene_h():
+    # (E)-stilbene, CDCl3 (from memory): the CH=CH singlet at 7.12 is no
+    # ring H; the rest are two phenyls
+    got = ring_sets("C14H12", "7.52 (d, J = 7.4 Hz, 4H), 7.37 (t, J = 7.6 Hz, 4H), "
+                    "7.27 (t, J = 7.3 Hz, 2H), 7.12 (s, 2H)")
+    assert [m.rule.key for m in got] == ["benzene_mono", "benzene_mono"]
+
+
+def test_one_reading_of_two_rings_that_cannot_be_fused():
+    # bisphenol A, CDCl3 (from memory): two 4H doublets read only as two
+    # para rings, and para rings have no adjacent substituents to fuse by
+    got = ring_sets("C15H16O2", "7.09 (d, J = 8.7 Hz, 4H), 6.73 (d, J = 8.7 Hz, 4H), 4.70 (br s, 2H), 1.62 (s, 6H)")
+    assert [(m.rule.key, m.rule.strength) for m in got] == [("benzene_para", "hard")] * 2
+    assert [sum(h for _, h in m.shares) for m in got] == [4, 4]
+
+
+def test_aabb_phthalate_reads_as_ortho():
+    # dimethyl phthalate, CDCl3 (from memory): the AA'BB' pair printed as dd
+    # 5.7, 3.3 Hz is a 1,2-disubstituted ring (fragments/benzene_ortho_aabb.toml)
+    p = load_problem(formula="C10H10O4", h1="7.72 (dd, J = 5.7, 3.3 Hz, 2H), 7.53 (dd, J = 5.7, 3.3 Hz, 2H), 3.91 (s, 6H)")
+    assert [k for k in keys(p) if k.startswith("benzene")] == ["benzene_ortho_aabb"]

@@ -405,8 +405,23 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
         if picked is None:
             continue
         out.append(FragmentMatch(rule, tuple(sorted(set(used) | set(picked)))))
-    out += _ring_sets(problem, rules)
-    return _soften_families(out)
+    if not any(m.rule.family == RING_FAMILY for m in out):
+        out += _ring_sets(problem, rules)
+    return _soften_families(_distinct(out))
+
+
+def _distinct(matches: list[FragmentMatch]) -> list[FragmentMatch]:
+    """Drop a family member that places the same fragment on the same
+    signals as an earlier one (two readings of one ring, such as the
+    first-order and the AA'BB' reading of a 1,2-disubstituted benzene)."""
+    seen: set = set()
+    out = []
+    for m in matches:
+        key = (m.rule.family, m.rule.smiles, m.signals, m.shares) if m.rule.family else id(m)
+        if key not in seen:
+            seen.add(key)
+            out.append(m)
+    return out
 
 
 #: the family whose rules read one aromatic ring from the 1H list
@@ -416,22 +431,30 @@ _MAX_RINGS = 3
 
 
 def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[FragmentMatch]:
-    """More ring H than one ring holds: read the window as several rings.
+    """Ring H no single ring pattern reads: read them as several rings.
 
-    Every sharp signal of the ring window is a ring H (as for one ring);
-    their H are shared out among two or three rings of the ring family, a
-    signal's H possibly among several rings (two equivalent phenyls give
-    one 4H doublet; an overlapped multiplet holds H of both rings), so that
-    each ring's share fits its pattern.  The reading is kept only when every
-    way that fits the formula (ring carbons, nitrogens, DoU) is
-    monosubstituted benzene rings plus at most one other ring: a phenyl is
-    never fused, so the rings are disjoint; two other rings might be the
-    halves of one fused system (naphthalene, quinoline), which no
-    alternative here describes, and nothing is claimed.
+    Called when no rule of the ring family matched the window as one ring
+    (more ring H than a ring holds, or a singlet among them that is no ring
+    H).  The sharp signals of the window are ring H, except that each
+    singlet may instead be a non-ring H (the CH=CH of a stilbene, the =CH
+    of a cinnamaldehyde); their H are shared out among one to three rings
+    of the family, a signal's H possibly among several rings (two
+    equivalent phenyls give one 4H doublet; an overlapped multiplet holds H
+    of both rings), so that each ring's share fits its pattern and the
+    formula holds the rings (carbons, nitrogens, DoU, the rings disjoint).
 
-    Returned: one hard-or-soft match per phenyl, each its own family, and,
-    when there is another ring, its alternatives as one family, first (its
-    shares are exact; the phenyls take the ring H it leaves).
+    Rings are claimed only when no feasible reading has two rings that
+    could be the halves of one fused system (each with two substituents
+    side by side, as the two halves of a naphthalene): disjoint rings are
+    what the readings describe, and a fused system is none of them.  Then:
+
+    * when every reading has the same number of phenyls and at most one
+      other ring, one match per phenyl (each its own family) and the other
+      ring's alternatives as one family, first (its shares are exact; the
+      phenyls take the ring H it leaves);
+    * else, when there is one reading only, one match per ring with exact
+      shares;
+    * else nothing.
     """
     f = problem.formula
     ring_rules = [
@@ -448,32 +471,61 @@ def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[Fragme
         i for i, s in enumerate(signals)
         if lo <= s.shift <= hi and not s.broad and not any(j >= mono.ring.not_ring_above for j in s.couplings)
     ]
-    total = sum(round(signals[i].h_count) for i in inside)
-    if total <= max(r.ring.h for r in ring_rules):
+    singlets = [i for i in inside if signals[i].multiplicity == "s"]
+    if len(singlets) > _MAX_SINGLETS:
         return []
-    feasible: list[tuple[tuple[FragmentRule, ...], list[dict[int, int]]]] = []
-    for k in range(2, _MAX_RINGS + 1):
-        for combo in itertools.combinations_with_replacement(ring_rules, k):
-            if sum(r.ring.h for r in combo) != total or not _budget_ok(combo, f):
-                continue
-            shares = _share_out(signals, inside, combo)
-            if shares is not None:
-                feasible.append((combo, shares))
-    if not feasible or any(sum(1 for r in combo if r is not mono) > 1 for combo, _ in feasible):
+    biggest = max(r.ring.h for r in ring_rules)
+    feasible: list[tuple[frozenset[int], tuple[FragmentRule, ...], list[dict[int, int]]]] = []
+    for n_out in range(len(singlets) + 1):
+        for out_set in itertools.combinations(singlets, n_out):
+            ring_h = [i for i in inside if i not in out_set]
+            total = sum(round(signals[i].h_count) for i in ring_h)
+            first = 1 if out_set else 2  # all of the window as one ring: the rules themselves
+            for k in range(first, _MAX_RINGS + 1):
+                if total > k * biggest:
+                    continue
+                for combo in itertools.combinations_with_replacement(ring_rules, k):
+                    if sum(r.ring.h for r in combo) != total or not _budget_ok(combo, f):
+                        continue
+                    shares = _share_out(signals, ring_h, combo)
+                    if shares is not None:
+                        feasible.append((frozenset(ring_h), combo, shares))
+    if not feasible or any(sum(1 for r in combo if _fusable(r.smiles)) > 1 for _, combo, _ in feasible):
         return []
-    # the ring H total fixes the number of phenyls (5 per ring): every
-    # feasible way has the same phenyls and the same number of other rings
     out: list[FragmentMatch] = []
-    for combo, shares in feasible:
-        for rule, share in zip(combo, shares):
-            if rule is not mono:
-                fam = dataclasses.replace(rule, family=f"{RING_FAMILY} (ring 1)")
-                out.append(FragmentMatch(fam, tuple(sorted(share)), tuple(sorted(share.items()))))
-    phenyls = sum(1 for r in feasible[0][0] if r is mono)
-    for n in range(phenyls):
-        fam = dataclasses.replace(mono, family=f"{RING_FAMILY} (ring {n + 2})")
-        out.append(FragmentMatch(fam, tuple(sorted(inside))))
+    shapes = {(sum(1 for r in combo if r is mono), sum(1 for r in combo if r is not mono)) for _, combo, _ in feasible}
+    if len(shapes) == 1 and next(iter(shapes))[1] <= 1:
+        phenyls = next(iter(shapes))[0]
+        for _, combo, shares in feasible:
+            for rule, share in zip(combo, shares):
+                if rule is not mono:
+                    fam = dataclasses.replace(rule, family=f"{RING_FAMILY} (ring 1)")
+                    out.append(FragmentMatch(fam, tuple(sorted(share)), tuple(sorted(share.items()))))
+        used = sorted(frozenset().union(*(ring_h for ring_h, _, _ in feasible)))
+        for n in range(phenyls):
+            fam = dataclasses.replace(mono, family=f"{RING_FAMILY} (ring {n + 2})")
+            out.append(FragmentMatch(fam, tuple(used)))
+    elif len(feasible) == 1:
+        _, combo, shares = feasible[0]
+        for n, (rule, share) in enumerate(zip(combo, shares)):
+            fam = dataclasses.replace(rule, family=f"{RING_FAMILY} (ring {n + 1})")
+            out.append(FragmentMatch(fam, tuple(sorted(share)), tuple(sorted(share.items()))))
     return out
+
+
+#: most singlets of the ring window tried as non-ring H
+_MAX_SINGLETS = 3
+
+
+@functools.cache
+def _fusable(smiles: str) -> bool:
+    """Does the ring fragment have two open valences on adjacent ring atoms
+    (so that it could be one half of a fused pair)?"""
+    from rdkit import Chem
+
+    mol = Chem.MolFromSmiles(smiles)
+    ports = [a.GetNeighbors()[0].GetIdx() for a in mol.GetAtoms() if a.GetAtomicNum() == 0]
+    return any(mol.GetBondBetweenAtoms(u, v) is not None for u, v in itertools.combinations(ports, 2))
 
 
 def _budget_ok(combo: tuple[FragmentRule, ...], f) -> bool:  # type: ignore[no-untyped-def]

@@ -171,6 +171,10 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
             if fell:
                 notes.append(f"note: no Shoolery σ for {NAMES.get(k, k)}; used {NAMES.get(used, used)}")
                 unc += 0.2
+        if ok and not methine and all(k.startswith("O") for _, k in func):
+            # two O on one CH2: the σ are not additive (acetals, OCH2O)
+            terms.append((base["shoolery_two_oxygen"]["value"], "two-oxygen correction"))
+            unc += 0.1
         if ok:
             total = sum(v for v, _ in terms)
             deriv = [f"{terms[0][0]:.2f} {terms[0][1]}"] + [f"{_fmt(v)} {t}" for v, t in terms[1:]]

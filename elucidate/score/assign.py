@@ -119,17 +119,21 @@ def _mult_steps(env: Environment, s: H1Signal) -> tuple[float, int]:
     pred = multiplicity_pattern(env.multiplicity)
     if pred is None:
         return 1.0, 0  # predicted a multiplet, observed first order: shape only
-    best = _steps(obs, pred)
-    # the prediction counts vicinal (3J) partners only; a resolved small J
-    # (4J: aromatic meta, allylic, W couplings, 0-3 Hz, common practice) is
-    # one it never shows, so the pattern without it is compared too
+    # small couplings (4J aromatic meta, allylic, W and =CH2 geminal, 0-3 Hz,
+    # common practice) are resolved in one paper and not in the next: a
+    # small J the data show and the prediction lacks, or one the prediction
+    # keeps and the data do not show, is no mismatch, so the patterns
+    # without them are compared too and the best reading counts
+    observed = [obs]
     if s.couplings and len(s.couplings) == len(obs) and any(j < LONG_RANGE_J for j in s.couplings):
-        vicinal = tuple(k for k, j in zip(obs, s.couplings) if j >= LONG_RANGE_J) or (1,)
-        best = min(best, _steps(vicinal, pred))
-    return best
+        observed.append(tuple(k for k, j in zip(obs, s.couplings) if j >= LONG_RANGE_J) or (1,))
+    predicted = [pred]
+    if any(c.j_hz < LONG_RANGE_J for c in env.couplings):
+        predicted.append(tuple(c.h_count + 1 for c in env.couplings if c.j_hz >= LONG_RANGE_J) or (1,))
+    return min(_steps(o, q) for o in observed for q in predicted)
 
 
-#: J (Hz) below which an observed splitting is taken for a long-range one
+#: J (Hz) below which a splitting is taken for a long-range (or =CH2 geminal) one
 LONG_RANGE_J = 2.2
 
 

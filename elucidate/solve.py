@@ -28,6 +28,7 @@ from __future__ import annotations
 
 import math
 import time
+from collections import Counter
 from dataclasses import dataclass, field
 from typing import Any, Callable
 
@@ -714,6 +715,14 @@ def _soft_terms(smiles: str, soft: list[FragmentMatch]) -> tuple[float, tuple[st
 _QUERIES: dict[str, Any] = {}
 
 
+def _has_fragments(mol: Any, choice: tuple[FragmentMatch, ...]) -> bool:
+    """Does the molecule contain every fragment of a choice, as many times
+    as the choice holds it (two phenyls: two matches)?"""
+    need = Counter(m.rule.smiles for m in choice)
+    return all(len(mol.GetSubstructMatches(_fragment_query(frag), maxMatches=n + 1)) >= n
+               for frag, n in need.items())
+
+
 def _fragment_query(smiles: str) -> Any:
     """SMARTS query of a fragment with exact H counts; dummies match any atom."""
     if smiles in _QUERIES:
@@ -958,10 +967,7 @@ def _constraint_reasons(problem: Problem, smiles: str, level: Level) -> list[str
     hset = _strict_hypotheses(problem, level, evidence)
     hard = [m for m in match_fragments(problem) if m.rule.strength == "hard"] if level.hard_fragments else []
     # only the fragment choices this structure contains can produce it
-    present = [
-        choice for choice in hard_alternatives(hard)
-        if all(mol.HasSubstructMatch(_fragment_query(m.rule.smiles)) for m in choice)
-    ]
+    present = [choice for choice in hard_alternatives(hard) if _has_fragments(mol, choice)]
     reasons: list[str] = []
     if not hset.hypotheses:
         reasons.append("no reading of the peak list as H-bearing groups fits the formula"
@@ -990,6 +996,14 @@ def _constraint_reasons(problem: Problem, smiles: str, level: Level) -> list[str
                 f"{said} imply {either} (the data cannot tell which; hard rule: {first.rule.source}); "
                 "this structure has none of them"
             )
+    # several rings read from one window (two phenyls) need as many copies
+    copies = Counter(alts[0].rule.smiles for alts in by_family(hard) if len(alts) == 1)
+    for frag, need in sorted(copies.items()):
+        have = len(mol.GetSubstructMatches(_fragment_query(frag)))
+        if need > 1 and 0 < have < need:
+            first = next(alts[0] for alts in by_family(hard) if alts[0].rule.smiles == frag)
+            reasons.append(f"{first.rule.evidence} ({describe_evidence(first, problem)}) imply {need} rings of this "
+                           f"kind: {first.rule.phrase} (hard rule: {first.rule.source}); this structure has {have}")
     for sm in problem.require:
         q = Chem.MolFromSmarts(sm)
         if q is not None and not mol.HasSubstructMatch(q):

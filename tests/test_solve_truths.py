@@ -116,3 +116,13 @@ def test_a_fused_benzo_ring_counts_as_its_fragment():
     # (RDKit reads the port bonds aromatic); the check must still see it
     case = next(c for label, c in CASES if label.endswith(":2-acetylbenzofuran"))
     assert strict_rejections(_problem(case, False), case["smiles"]) == ()
+
+
+def test_two_rings_read_from_one_window_need_two_copies():
+    # benzyl benzoate (case of unknowns_large.toml, from memory): ten ring H
+    # read as two phenyls; an isomer with one phenyl and a tolyl is told so
+    case = next(c for label, c in CASES if label.endswith(":benzyl benzoate"))
+    p = _problem(case, False)
+    assert strict_rejections(p, case["smiles"]) == ()
+    why = " | ".join(strict_rejections(p, "Cc1ccc(C(=O)Oc2ccccc2)cc1"))
+    assert "imply 2 rings of this kind" in why and "this structure has 1" in why

@@ -461,3 +461,12 @@ def test_carbon_rules_table_has_sources() -> None:
     rules = tables.carbon_rules()
     assert {"ketone_base", "ester_base", "ring_sp3_6", "gem_pair", "vinyl_cis"} <= set(rules)
     assert all(r.source.strip() for r in rules.values())
+
+
+def test_imide_nh_above_amide_nh() -> None:
+    # phenytoin in DMSO-d6 (from memory): N3-H (between two C=O) 11.1, N1-H 9.3
+    from elucidate.predict import predict
+
+    envs = [e for e in predict("O=C1NC(=O)C(N1)(c1ccccc1)c1ccccc1", solvent="DMSO-d6").environments
+            if e.exchangeable]
+    assert sorted(round(e.shift, 1) for e in envs) == [8.0, 11.0]

@@ -188,6 +188,8 @@ def test_amide_methyls_may_show_apart():
         ("NC#Cc1ccccc1", 2.0),       # ynamine (common practice: rarely isolated)
         ("COOC", 2.0),               # peroxide
         ("CCCn1oo1", None),          # aromatic three-ring with two heteroatoms: penalised
+        ("OC(=Nc1ccccc1)c1ccccc1", 1.5),  # imidic acid: the amide tautomer is the one isolated
+        ("O=C(Nc1ccccc1)c1ccccc1", 0.0),  # benzanilide itself
     ],
 )
 def test_unusual_groups(smiles, expected):
@@ -211,3 +213,14 @@ def test_small_long_range_j_is_not_held_against_a_vicinal_prediction():
     assert _mult_steps(e, sig(7.59, "tt", 1, [7.4, 1.3])) == (0.0, 0)
     # a large second J is a real vicinal partner the prediction misses
     assert _mult_steps(e, sig(7.59, "td", 1, [7.4, 5.0]))[1] > 0
+
+
+def test_aabb_half_is_no_multiplicity_mismatch():
+    # dimethyl phthalate 7.72 (dd, J = 5.7, 3.3 Hz, 2H) (from memory): the
+    # apparent J of an AA'BB' half are no partner count (common practice)
+    from elucidate.score.assign import _mult_steps
+
+    e = env(0, [0], 2, 7.7, "d", "ArH")
+    assert _mult_steps(e, sig(7.72, "dd", 2, [5.7, 3.3])) == (0.0, 0)
+    assert _mult_steps(e, sig(7.72, "dd", 2, [8.0, 2.0]))[0] == 0.0  # 2.0 Hz: a meta J, dropped
+    assert _mult_steps(e, sig(7.72, "dd", 2, [8.0, 6.5]))[1] > 0  # two real partners

@@ -512,6 +512,8 @@ def hetero_h_shift(g: MolGraph, x: int, solvent: str | None) -> Shift:
             ring = g.aro_system.get(x, frozenset())
             n_ring_n = sum(1 for a in ring if g.el[a] == "N")
             return special_shift("NH_imidazole" if n_ring_n >= 2 else "NH_pyrrole", label, solvent, "XH")
+        if sum(1 for y in others if g.is_carbonyl_carbon(y)) >= 2:
+            return special_shift("NH_imide", label, solvent, "XH")
         for y in others:
             if g.is_carbonyl_carbon(y):
                 return special_shift("NH_amide", label, solvent, "XH")

@@ -124,6 +124,8 @@ def _mult_steps(env: Environment, s: H1Signal) -> tuple[float, int]:
     # small J the data show and the prediction lacks, or one the prediction
     # keeps and the data do not show, is no mismatch, so the patterns
     # without them are compared too and the best reading counts
+    if _aabb(s):
+        return 0.0, 0  # second order: the printed J are not partner counts
     observed = [obs]
     if s.couplings and len(s.couplings) == len(obs) and any(j < LONG_RANGE_J for j in s.couplings):
         observed.append(tuple(k for k, j in zip(obs, s.couplings) if j >= LONG_RANGE_J) or (1,))
@@ -135,6 +137,15 @@ def _mult_steps(env: Environment, s: H1Signal) -> tuple[float, int]:
 
 #: J (Hz) below which a splitting is taken for a long-range (or =CH2 geminal) one
 LONG_RANGE_J = 2.2
+
+
+def _aabb(s: H1Signal) -> bool:
+    """A half of an AA'BB' ring pattern printed as a 2H dd with apparent J
+    of 5-6.6 and 2.6-3.9 Hz (phthalates, 1,2-dichlorobenzene; common
+    practice, the same window as ``fragments/benzene_ortho_aabb.toml``)."""
+    js = sorted(s.couplings, reverse=True)
+    return (s.multiplicity == "dd" and round(s.h_count) == 2 and len(js) == 2
+            and 5.0 <= js[0] <= 6.6 and 2.6 <= js[1] <= 3.9)
 
 
 def _steps(obs: tuple[int, ...], pred: tuple[int, ...]) -> tuple[float, int]:

@@ -309,3 +309,13 @@ def test_aabb_phthalate_reads_as_ortho():
     # 5.7, 3.3 Hz is a 1,2-disubstituted ring (fragments/benzene_ortho_aabb.toml)
     p = load_problem(formula="C10H10O4", h1="7.72 (dd, J = 5.7, 3.3 Hz, 2H), 7.53 (dd, J = 5.7, 3.3 Hz, 2H), 3.91 (s, 6H)")
     assert [k for k in keys(p) if k.startswith("benzene")] == ["benzene_ortho_aabb"]
+
+
+def test_a_doublet_coupled_only_outside_the_window_may_be_no_ring_h():
+    # 7-methoxycoumarin (herniarin), CDCl3 (case of unknowns_large.toml, from
+    # memory): H-4 (7.63, d 9.5) couples only with H-3 at 6.24, below the
+    # window; the other three are a 1,2,4-pattern (the benzo ring)
+    got = ring_sets("C10H8O3", "7.63 (d, J = 9.5 Hz, 1H), 7.37 (d, J = 8.6 Hz, 1H), 6.85 (dd, J = 8.6, 2.4 Hz, 1H), "
+                    "6.81 (d, J = 2.4 Hz, 1H), 6.24 (d, J = 9.5 Hz, 1H), 3.87 (s, 3H)")
+    assert [(m.rule.key, m.rule.strength) for m in got] == [("benzene_124", "hard")]
+    assert sorted(m.signals[0] for m in got) == [1]

@@ -434,10 +434,12 @@ def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[Fragme
     """Ring H no single ring pattern reads: read them as several rings.
 
     Called when no rule of the ring family matched the window as one ring
-    (more ring H than a ring holds, or a singlet among them that is no ring
+    (more ring H than a ring holds, or a signal among them that is no ring
     H).  The sharp signals of the window are ring H, except that each
     singlet may instead be a non-ring H (the CH=CH of a stilbene, the =CH
-    of a cinnamaldehyde); their H are shared out among one to three rings
+    of a cinnamaldehyde), and so may a signal whose every J it shares with
+    signals outside the window only (the H-4 doublet of a coumarin, J 9.5
+    Hz with H-3 below the window); their H are shared out among one to three rings
     of the family, a signal's H possibly among several rings (two
     equivalent phenyls give one 4H doublet; an overlapped multiplet holds H
     of both rings), so that each ring's share fits its pattern and the
@@ -471,7 +473,18 @@ def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[Fragme
         i for i, s in enumerate(signals)
         if lo <= s.shift <= hi and not s.broad and not any(j >= mono.ring.not_ring_above for j in s.couplings)
     ]
-    singlets = [i for i in inside if signals[i].multiplicity == "s"]
+    # signals that may be no ring H: singlets, and a signal whose every J
+    # is shared with signals outside the window and with none inside (the
+    # H-4 doublet of a coumarin, whose partner H-3 lies below the window)
+    outside = [s for i, s in enumerate(signals) if i not in inside]
+    singlets = [
+        i for i in inside
+        if signals[i].multiplicity == "s" or (
+            signals[i].couplings
+            and all(any(abs(j - k) <= _J_SHARE for o in outside for k in o.couplings)
+                    for j in signals[i].couplings if j >= mono.ring.ignore_below)
+            and not any(_shares_j(signals[i], signals[k]) for k in inside if k != i))
+    ]
     if len(singlets) > _MAX_SINGLETS:
         return []
     biggest = max(r.ring.h for r in ring_rules)

@@ -197,23 +197,10 @@ def test_ring_and_alkene_patterns(name, f, h1, expected):
 
 
 def test_family_with_a_soft_member_is_soft():
-    # 3,5-dimethylaniline (from memory, CDCl3): three small-J ring H in a
-    # formula with N may be an azine or azole ring the library does not
-    # describe (benzene_135_n is soft), so no ring reading may prune
-    ms = match_fragments(load_problem(formula="C8H11N", h1="6.45 (s, 1H), 6.36 (s, 2H), 3.50 (br s, 2H), 2.22 (s, 6H)"))
-    assert {m.rule.strength for m in ms if m.rule.family} == {"soft"}
-
-
-def test_three_singlet_ring_h_prune_without_nitrogen():
-    # mesitylene, 6.78 (s, 3H), 2.27 (s, 9H) (from memory): 1,2,3-, 1,2,4- and
-    # 1,3,5-substitution, all hard; with O, the 2- and 3-furans join the family
+    # mesitylene's 3H singlet fits 1,2,3-, 1,2,4- and 1,3,5-substitution; the
+    # 1,3,5 fragment cannot be placed (soft), so none of them may prune
     ms = match_fragments(load_problem(formula="C9H12", h1="6.78 (s, 3H), 2.27 (s, 9H)"))
-    assert {(m.rule.key, m.rule.strength) for m in ms if m.rule.family} == {
-        ("benzene_123", "hard"), ("benzene_124", "hard"), ("benzene_135", "hard")}
-    # methyl 3,5-dimethoxybenzoate (case of unknowns_large.toml, from memory)
-    p = load_problem(formula="C10H12O4", h1="7.17 (d, J = 2.3 Hz, 2H), 6.64 (t, J = 2.3 Hz, 1H), "
-                     "3.90 (s, 3H), 3.82 (s, 6H)")
-    assert sorted(m.rule.key for m in match_fragments(p) if m.rule.family) == ["benzene_135", "furan_3"]
+    assert {m.rule.strength for m in ms if m.rule.family} == {"soft"}
 
 
 def test_fluorine_rules_ring_patterns_out():

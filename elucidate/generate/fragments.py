@@ -115,13 +115,8 @@ def _parse_fragment(fs: FragmentSpec) -> Fragment:
     for k in fs.neighbour_h:
         if not 0 <= k < len(heavy):
             raise InputError(f"fragment {fs.smiles!r}: neighbour_h names atom {k}, which it does not have")
-    # port symmetry classes from the fragment's automorphisms, taken on the
-    # aromatic graph: the Kekulé form of a 1,3,5-substituted ring has only
-    # the threefold rotation, but its mirror image is the other Kekulé form
-    # of the same molecule (ports are single bonds, so the ring's Kekulé
-    # form never reaches outside it)
-    arom = Chem.MolFromSmiles(fs.smiles)
-    autos = arom.GetSubstructMatches(arom, uniquify=False, useChirality=False, maxMatches=100000)
+    # port symmetry classes from the fragment's automorphisms
+    autos = mol.GetSubstructMatches(mol, uniquify=False, useChirality=False, maxMatches=100000)
     dpos = {d: k for k, d in enumerate(dummy_atoms)}
     perms = {tuple(dpos[m[d]] for d in dummy_atoms) for m in autos}
     cls = list(range(len(ports)))

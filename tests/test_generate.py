@@ -408,3 +408,13 @@ def test_neighbour_rule_counts_h_on_a_fragment_port_anchor():
         (FragmentSpec("*[CH]=[CH]*"),),
     )
     assert list(generate(spec)) == ["CC=CC"]
+
+
+def test_two_ring_fragments_keep_every_link() -> None:
+    # a meta ring, a phenyl, a CH3, a C and an O: 3-acetylbiphenyl and
+    # 3-methylbenzophenone are both built (a port symmetry taken from the
+    # aromatic rather than the Kekulé graph once lost the first)
+    spec = Spec(F("C14H12O"), atoms=(AtomSpec("C", 3), AtomSpec("C", 0), AtomSpec("O", 0)),
+                fragments=(FragmentSpec("*c1cccc(*)c1"), FragmentSpec("*c1ccccc1")))
+    got = set(generate(spec))
+    assert {"CC(=O)c1cccc(-c2ccccc2)c1", "Cc1cccc(C(=O)c2ccccc2)c1"} <= got

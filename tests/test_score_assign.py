@@ -190,6 +190,8 @@ def test_amide_methyls_may_show_apart():
         ("CCCn1oo1", None),          # aromatic three-ring with two heteroatoms: penalised
         ("OC(=Nc1ccccc1)c1ccccc1", 1.5),  # imidic acid: the amide tautomer is the one isolated
         ("O=C(Nc1ccccc1)c1ccccc1", 0.0),  # benzanilide itself
+        ("c1cc2c[nH]cc3cccc-3c-2c1", 1.5),  # an azulene-type isomer of carbazole
+        ("c1ccc2c(c1)[nH]c1ccccc12", 0.0),  # carbazole itself
     ],
 )
 def test_unusual_groups(smiles, expected):

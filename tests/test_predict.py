@@ -470,3 +470,13 @@ def test_imide_nh_above_amide_nh() -> None:
     envs = [e for e in predict("O=C1NC(=O)C(N1)(c1ccccc1)c1ccccc1", solvent="DMSO-d6").environments
             if e.exchangeable]
     assert sorted(round(e.shift, 1) for e in envs) == [8.0, 11.0]
+
+
+def test_tertiary_benzamide_ring_h_stay_near_benzene() -> None:
+    # N,N-diethylbenzamide, CDCl3: ring H 7.35-7.40 (m, 5H) (from memory);
+    # a primary benzamide's ortho H lie near 7.8 (from memory)
+    from elucidate.predict import predict
+
+    tert = [e.shift for e in predict("CCN(CC)C(=O)c1ccccc1").environments if e.label == "ArH"]
+    prim = [e.shift for e in predict("NC(=O)c1ccccc1").environments if e.label == "ArH"]
+    assert all(7.25 <= s <= 7.5 for s in tert) and max(prim) > 7.7

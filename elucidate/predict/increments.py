@@ -43,7 +43,7 @@ NAMES: dict[str, str] = {
     "R": "alkyl", "R_ring": "alkyl (in ring)", "R2": "CH2R", "R3": "CHR2", "R4": "CR3",
     "Ar": "aryl", "C=C": "C=C", "C=C_conj": "C=C (conjugated)", "C#C": "C≡C",
     "CHO": "CHO", "COR": "C(=O)R", "COAr": "C(=O)Ar", "COOH": "COOH", "COOR": "C(=O)OR",
-    "CONR2": "C(=O)N", "COCl": "C(=O)X", "CN": "C≡N", "C=N": "C=N", "CF3": "CF3",
+    "CONR2": "C(=O)N", "CONR2t": "C(=O)NR2 (tertiary)", "COCl": "C(=O)X", "CN": "C≡N", "C=N": "C=N", "CF3": "CF3",
     "F": "F", "Cl": "Cl", "Br": "Br", "I": "I", "OH": "OH", "OR": "OR", "OAr": "OAr",
     "OCOR": "OC(=O)R", "OCOAr": "OC(=O)Ar", "OSO2R": "OSO2R", "NH2": "NH2/NHR",
     "NR2": "NR2", "NAr": "N–aryl", "NCOR": "N–C(=O)R", "Narom": "N (aromatic ring)",
@@ -412,6 +412,8 @@ def _benzene_key(g: MolGraph, a: int, x: int, subs: dict[tuple[int, int], str]) 
         return alkyl_subtype(g, a, x)
     if k == "SO2R" and any(g.el[y] == "Cl" for y in g.nbrs[x]):
         return "SO2Cl"
+    if k == "CONR2" and any(g.el[y] == "N" and not g.hs[y] for y in g.nbrs[x]):
+        return "CONR2t"  # a tertiary amide turns out of the ring plane
     return k
 
 

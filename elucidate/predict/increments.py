@@ -242,7 +242,8 @@ def sp3_shift(g: MolGraph, c: int, subs: dict[tuple[int, int], str]) -> Shift:
         ring = g.rings[r]
         row = tables.sp3_ring_h().get(len(ring))
         if row is not None and all(g.order[a].get(b) == 1 for a, b in zip(ring, ring[1:] + ring[:1])):
-            terms.append((row["correction"], f"{len(ring)}-ring"))
+            corr = row["correction_ch"] if nh == 1 else row["correction"]
+            terms.append((corr, f"{len(ring)}-ring" + (" methine" if nh == 1 else "")))
 
     total = sum(v for v, _ in terms)
     deriv = [f"{terms[0][0]:.2f} {terms[0][1]}"] + [f"{_fmt(v)} {t}" for v, t in terms[1:]]

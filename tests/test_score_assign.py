@@ -192,6 +192,7 @@ def test_amide_methyls_may_show_apart():
         ("O=C(Nc1ccccc1)c1ccccc1", 0.0),  # benzanilide itself
         ("c1cc2c[nH]cc3cccc-3c-2c1", 1.5),  # an azulene-type isomer of carbazole
         ("c1ccc2c(c1)[nH]c1ccccc12", 0.0),  # carbazole itself
+        ("CC(C)(OCl)C", 2.0),  # tert-butyl hypochlorite: a reagent, not an unknown's structure
     ],
 )
 def test_unusual_groups(smiles, expected):

@@ -480,3 +480,13 @@ def test_tertiary_benzamide_ring_h_stay_near_benzene() -> None:
     tert = [e.shift for e in predict("CCN(CC)C(=O)c1ccccc1").environments if e.label == "ArH"]
     prim = [e.shift for e in predict("NC(=O)c1ccccc1").environments if e.label == "ArH"]
     assert all(7.25 <= s <= 7.5 for s in tert) and max(prim) > 7.7
+
+
+def test_two_ortho_esters_twist() -> None:
+    # dimethyl phthalate, CDCl3: 7.72 (H-3/6), 7.53 (H-4/5) (from memory);
+    # phthalic anhydride keeps its ring carbonyls planar: 8.0 (from memory)
+    from elucidate.predict import predict
+
+    phth = sorted(e.shift for e in predict("COC(=O)c1ccccc1C(=O)OC").environments if e.label == "ArH")
+    anhydride = max(e.shift for e in predict("O=C1OC(=O)c2ccccc12").environments if e.label == "ArH")
+    assert abs(phth[1] - 7.72) < 0.1 and anhydride > 7.9

@@ -188,6 +188,8 @@ def test_carbon_kinds_on_naproxen(smiles: str, words: str | None) -> None:
         ("COc1cc2ccc1C(=O)OC=C2", "para positions"),
         ("C1CCc2cccc(c2)C1", "meta positions"),  # [5]metacyclophane
         ("C1=CC2=CC=C1CC2", "para positions"),  # [2]paracyclophane
+        ("COC(=O)C=Cc1ccc2c(c1)O2", "three-membered ring fused"),  # a benzoxirene ranked above herniarin
+        ("c1ccc2c(c1)CC2", None),  # benzocyclobutene: a real, stable compound
     ],
 )
 def test_common_rings(smiles: str, words: str | None) -> None:

@@ -844,6 +844,9 @@ def _ring_reason(n: int, symbols: tuple[str, ...], edges: Any, orders: Any, max_
         return f"has a {worst}-membered ring (the first levels search rings of at most {max_ring} atoms)"
     if ring_atoms and sum(1 for o in orders if o == 2) >= 3:
         bridge = _bridged_benzene(n, adj, edges, orders, ring_atoms)
+        if bridge == "ortho":
+            return ("has a three-membered ring fused to a benzene-type ring (cyclopropabenzenes and "
+                    "benzoxirenes are strained curiosities)")
         if bridge:
             return (f"has a benzene-type ring bridged across its {bridge} positions (fused rings share an ortho "
                     "pair; a short meta or para bridge is a strained cyclophane)")
@@ -862,8 +865,9 @@ _SHORT_BRIDGE = 5
 def _bridged_benzene(n: int, adj: list[int], edges: Any, orders: Any, ring_atoms: int) -> str | None:
     """'meta' or 'para' when a six-ring with three ring double bonds (a
     benzene or azine ring in Kekulé form) has two non-adjacent atoms joined
-    by a short path outside the ring, else None.  Fused aromatics join an
-    ortho pair only (common practice)."""
+    by a short path outside the ring, 'ortho' when a three-membered ring
+    shares one of its bonds, else None.  Fused aromatics join an ortho pair
+    by a path of at least two atoms (common practice)."""
     double = {(u, v) for (u, v), o in zip(edges, orders) if o == 2}
     double |= {(v, u) for u, v in double}
     for ring in _six_rings(n, [a & ring_atoms for a in adj]):
@@ -873,6 +877,10 @@ def _bridged_benzene(n: int, adj: list[int], edges: Any, orders: Any, ring_atoms
         inside = 0
         for a in ring:
             inside |= 1 << a
+        # a three-membered ring sharing a bond with it (cyclopropabenzene,
+        # benzoxirene: isolable at best as curiosities)
+        if any(adj[u] & adj[v] & ~inside for u, v in bonds):
+            return "ortho"
         for k in range(6):
             for gap, word in ((2, "meta"), (3, "para")):
                 a, b = ring[k], ring[(k + gap) % 6]

@@ -186,3 +186,18 @@ def test_amide_nh_splitting_allowed():
     best = proton_groups(p).hypotheses[0]
     ch3 = [g for g in best.groups if g.signals == (1,)]
     assert ch3 and 0 in ch3[0].neighbour_h
+
+
+def test_ch_coupled_to_its_oh_needs_no_carbon_neighbour_h():
+    # diphenylmethanol (benzhydrol) in dry CDCl3 (case of unknowns_large.toml,
+    # from memory): CH 5.84 (d, J = 3.5 Hz) and OH 2.25 (d, J = 3.5 Hz); the
+    # CH's partner is the OH, so its carbon neighbours may carry no H
+    from elucidate.parse import load_problem
+
+    p = load_problem(formula="C13H12O", h1="7.40-7.22 (m, 10H), 5.84 (d, J = 3.5 Hz, 1H), 2.25 (d, J = 3.5 Hz, 1H)")
+    hset = proton_groups(p)
+    assert any(
+        g.signals == (1,) and g.kind == "CH" and g.neighbour_h is not None and 0 in g.neighbour_h
+        and any(o.kind == "OH" and o.signals == (2,) for o in h.groups)
+        for h in hset.hypotheses for g in h.groups
+    )

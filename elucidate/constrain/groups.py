@@ -169,6 +169,14 @@ def attachment_class(signal: H1Signal) -> str:
     return "alkyl CH (or exchangeable XH)"
 
 
+_XH_KINDS = ("OH", "NH", "NH2", "SH")
+
+
+def _same_j(a: H1Signal, b: H1Signal) -> bool:
+    """Do two signals report a coupling within 0.6 Hz of each other (common practice)?"""
+    return any(abs(x - y) <= 0.6 for x in a.couplings for y in b.couplings)
+
+
 def neighbour_counts(
     signal: H1Signal,
     formula: Formula,
@@ -177,6 +185,7 @@ def neighbour_counts(
     has_xh: bool = False,
     has_nh: bool = False,
     groups: int = 1,
+    xh_partner: int = 0,
 ) -> frozenset[int] | None:
     """Allowed numbers of H on carbons bonded to the atom(s) of this signal.
 
@@ -186,7 +195,8 @@ def neighbour_counts(
     give no rule (``None``).  H–F and H–P couplings also split signals, so a
     formula with F or P only bounds the count from above; so do NH (amides,
     slow exchange) and OH in DMSO-d6 or acetone-d6, which the generator's
-    count (H on carbon only) leaves out.
+    count (H on carbon only) leaves out; so does an OH/NH signal of the
+    reading that reports the same J (``xh_partner``: its H, at most 2).
 
     When the signal holds ``groups`` > 1 groups of one kind, H of the same
     signal do not split each other (isochronous H show no coupling among
@@ -234,6 +244,8 @@ def neighbour_counts(
         # J ~5 Hz); OH does so in DMSO-d6/acetone-d6 (common practice). The
         # generator counts only H on carbon, so allow up to two fewer.
         allowed |= {v - k for v in allowed for k in (1, 2) if v - k >= 0}
+    elif xh_partner:
+        allowed |= {v - k for v in allowed for k in range(1, xh_partner + 1) if v - k >= 0}
     if groups > 1:
         per = max(1, round(signal.h_count) // groups)
         if signal.shift >= _RING_H_LOW and per == 1 and pattern != (1,):
@@ -507,8 +519,16 @@ def _build(problem: Problem, formula: Formula, hs: list[int], values: dict, cost
         kinds = [(k, values.get((i, k), 0)) for k, _, _ in GROUP_KINDS]
         present = [(k, v) for k, v in kinds if v]
         pure = len(present) == 1 and present[0][0] in ("CH3", "CH2", "CH")
+        # an OH or NH of this reading that shows the same J couples to it
+        # (CH-OH of a dry CDCl3 solution: d, J = 3-5 Hz, on both signals)
+        xh_partner = sum(
+            v for (j, k), v in values.items()
+            if v and isinstance(j, int) and j != i and k in _XH_KINDS and _same_j(s, problem.h1[j])
+            and not any(w for (j2, k2), w in values.items() if j2 == j and k2 not in _XH_KINDS)
+        )
         nb = (
-            neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh, groups=present[0][1])
+            neighbour_counts(s, formula, problem.solvent, has_xh=has_xh, has_nh=has_nh, groups=present[0][1],
+                             xh_partner=min(xh_partner, 2))
             if pure else None
         )
         text = []

@@ -997,11 +997,12 @@ def _constraint_reasons(problem: Problem, smiles: str, level: Level) -> list[str
                 "this structure has none of them"
             )
     # several rings read from one window (two phenyls) need as many copies
-    copies = Counter(alts[0].rule.smiles for alts in by_family(hard) if len(alts) == 1)
+    singles = [alts[0] for alts in by_family(hard) if len(alts) == 1]
+    copies = Counter(m.rule.smiles for m in singles)
     for frag, need in sorted(copies.items()):
         have = len(mol.GetSubstructMatches(_fragment_query(frag)))
         if need > 1 and 0 < have < need:
-            first = next(alts[0] for alts in by_family(hard) if alts[0].rule.smiles == frag)
+            first = next(m for m in singles if m.rule.smiles == frag)
             reasons.append(f"{first.rule.evidence} ({describe_evidence(first, problem)}) imply {need} rings of this "
                            f"kind: {first.rule.phrase} (hard rule: {first.rule.source}); this structure has {have}")
     for sm in problem.require:

@@ -231,10 +231,15 @@ class Region:
         return self.lo <= shift < self.hi
 
 
-def _read_regions(name: str) -> tuple[Region, ...]:
+def _data_rows(name: str) -> list[dict[str, str]]:
+    """Rows of a table in ``constrain/data/``."""
     text = resources.files("elucidate.constrain").joinpath(f"data/{name}").read_text(encoding="utf-8")
+    return list(csv.DictReader(text.splitlines()))
+
+
+def _read_regions(name: str) -> tuple[Region, ...]:
     rows = []
-    for row in csv.DictReader(text.splitlines()):
+    for row in _data_rows(name):
         if row["needs"] not in _NEEDS:
             raise ValueError(f"constrain/data/{name}: unknown need {row['needs']!r}")
         rows.append(Region(float(row["lo"]), float(row["hi"]), row["needs"], row["words"], row["source"]))
@@ -523,9 +528,8 @@ class Kind:
 @functools.cache
 def carbon_kinds() -> dict[str, Kind]:
     """Carbon kinds and their 13C windows (``data/c13_kinds.csv``), loaded once."""
-    text = resources.files("elucidate.constrain").joinpath("data/c13_kinds.csv").read_text(encoding="utf-8")
     out = {}
-    for row in csv.DictReader(text.splitlines()):
+    for row in _data_rows("c13_kinds.csv"):
         out[row["kind"]] = Kind(row["kind"], float(row["lo"]), float(row["hi"]), row["words"], row["source"])
     missing = set(_KIND_NAMES) - set(out)
     if missing:
@@ -534,8 +538,7 @@ def carbon_kinds() -> dict[str, Kind]:
 
 
 _KIND_NAMES = ("sp3", "sp3_x", "alkyne", "alkyne_x", "nitrile", "allene_centre", "cumulene_inner", "cumulene_x",
-               "allene_end",
-               "ketene_end", "c_eq_o", "c_eq_s", "c_eq_n", "sp2", "sp2_x")
+               "allene_end", "ketene_end", "c_eq_o", "c_eq_s", "c_eq_n", "sp2", "sp2_x")
 
 
 def carbon_kind_names(graph: Graph) -> dict[int, str]:
@@ -602,7 +605,7 @@ class CarbonKinds(Evidence):
     carbon counts, one per line unless ``(2C)`` is written, add up to it):
     then each carbon has a line of its own, at a shift its kind reaches
     (``data/c13_kinds.csv``: a C#C carbon 55-110 ppm, an allene centre
-    140-235, a C=O carbon 140-245, a plain sp3 carbon below 72, ...) and
+    185-235, a C=O carbon 140-245, a plain sp3 carbon below 72, ...) and
     with the H count the line's DEPT label gives.  A bipartite matching
     of carbons to line slots decides.  This is the converse of
     :class:`CarbonRegions` (which asks that each line find a carbon): it

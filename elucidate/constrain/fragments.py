@@ -66,6 +66,7 @@ __all__ = [
     "fragment_atoms",
     "hard_alternatives",
     "by_family",
+    "shares_j",
     "describe_evidence",
     "ring_reading",
 ]
@@ -173,14 +174,19 @@ def _fits(seen: Counter, pos: Counter, major: tuple[str, ...]) -> bool:
     return all(n <= pos[c] for c, n in seen.items())
 
 
-def _ring_match(signals: tuple[H1Signal, ...], ring: RingPattern) -> tuple[int, ...] | None:
+def _ring_window(signals: tuple[H1Signal, ...], ring: RingPattern) -> list[int]:
+    """Signals a ring pattern counts as ring H: in its window and sharp;
+    broad signals are taken for NH/OH, and an H with a J above any ring J
+    (an alkene H, J 10-18 Hz) is no ring H."""
     lo, hi = ring.window
-    # broad signals are taken for NH/OH, and an H with a J above any ring J
-    # (an alkene H, J 10-18 Hz) is no ring H
-    inside = [
+    return [
         i for i, s in enumerate(signals)
         if lo <= s.shift <= hi and not s.broad and not any(j >= ring.not_ring_above for j in s.couplings)
     ]
+
+
+def _ring_match(signals: tuple[H1Signal, ...], ring: RingPattern) -> tuple[int, ...] | None:
+    inside = _ring_window(signals, ring)
     if sum(round(signals[i].h_count) for i in inside) != ring.h or ring.h != len(ring.positions):
         return None
     if ring.within is not None and not all(ring.within[0] <= signals[i].shift <= ring.within[1] for i in inside):
@@ -391,9 +397,7 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
     out = []
     f = problem.formula
     for rule in rules:
-        if f["C"] < rule.min_carbons or f.dou < rule.min_dou or f["O"] < rule.min_oxygens:
-            continue
-        if any(f[el] == 0 for el in rule.elements) or any(f[el] > 0 for el in rule.no_elements):
+        if not _formula_allows(rule, f):
             continue
         used: tuple[int, ...] = ()
         if rule.ring is not None:
@@ -408,6 +412,13 @@ def match_fragments(problem: Problem, rules: tuple[FragmentRule, ...] | None = N
     if not any(m.rule.family == RING_FAMILY for m in out):
         out += _ring_sets(problem, rules)
     return _soften_families(_distinct(out))
+
+
+def _formula_allows(rule: FragmentRule, f) -> bool:  # type: ignore[no-untyped-def]
+    """The rule's conditions on the formula (carbons, DoU, O, elements)."""
+    if f["C"] < rule.min_carbons or f.dou < rule.min_dou or f["O"] < rule.min_oxygens:
+        return False
+    return not any(f[el] == 0 for el in rule.elements) and not any(f[el] > 0 for el in rule.no_elements)
 
 
 def _distinct(matches: list[FragmentMatch]) -> list[FragmentMatch]:
@@ -459,20 +470,12 @@ def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[Fragme
     * else nothing.
     """
     f = problem.formula
-    ring_rules = [
-        r for r in rules
-        if r.ring is not None and r.family == RING_FAMILY and f["C"] >= r.min_carbons
-        and not any(f[el] == 0 for el in r.elements) and not any(f[el] > 0 for el in r.no_elements)
-    ]
+    ring_rules = [r for r in rules if r.ring is not None and r.family == RING_FAMILY and _formula_allows(r, f)]
     mono = next((r for r in ring_rules if len(r.ring.positions) == 5 and r.smiles.count("*") == 1), None)
     if mono is None:
         return []
-    lo, hi = mono.ring.window
     signals = problem.h1
-    inside = [
-        i for i, s in enumerate(signals)
-        if lo <= s.shift <= hi and not s.broad and not any(j >= mono.ring.not_ring_above for j in s.couplings)
-    ]
+    inside = _ring_window(signals, mono.ring)
     # signals that may be no ring H: singlets, and a signal whose every J
     # is shared with signals outside the window and with none inside (the
     # H-4 doublet of a coumarin, whose partner H-3 lies below the window)
@@ -483,7 +486,7 @@ def _ring_sets(problem: Problem, rules: tuple[FragmentRule, ...]) -> list[Fragme
             signals[i].couplings
             and all(any(abs(j - k) <= _J_SHARE for o in outside for k in o.couplings)
                     for j in signals[i].couplings if j >= mono.ring.ignore_below)
-            and not any(_shares_j(signals[i], signals[k]) for k in inside if k != i))
+            and not any(shares_j(signals[i], signals[k]) for k in inside if k != i))
     ]
     if len(singlets) > _MAX_SINGLETS:
         return []
@@ -642,7 +645,8 @@ def describe_evidence(match: FragmentMatch, problem: Problem) -> str:
     return ", ".join(parts)
 
 
-def _shares_j(a: H1Signal, b: H1Signal) -> bool:
+def shares_j(a: H1Signal, b: H1Signal) -> bool:
+    """Do two signals report a coupling within 0.6 Hz of each other (common practice)?"""
     return any(abs(x - y) <= _J_SHARE for x in a.couplings for y in b.couplings)
 
 
@@ -650,7 +654,7 @@ def _exclusive(signals: tuple[H1Signal, ...], chosen: tuple[int, ...], window: t
     if window is None:
         return True
     return not any(
-        window[0] <= s.shift <= window[1] and round(s.h_count) == 1 and _shares_j(s, signals[c])
+        window[0] <= s.shift <= window[1] and round(s.h_count) == 1 and shares_j(s, signals[c])
         for i, s in enumerate(signals) if i not in chosen for c in chosen
     )
 
@@ -667,7 +671,7 @@ def _pick(
     for i, s in enumerate(signals):
         if i in chosen or not pat.accepts(s):
             continue
-        if pat.same_j and chosen and not _shares_j(signals[chosen[-1]], s):
+        if pat.same_j and chosen and not shares_j(signals[chosen[-1]], s):
             continue
         got = _pick(signals, pats, chosen + (i,), exclusive)
         if got is not None:

@@ -21,6 +21,7 @@ hypotheses come out cheapest first.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from elucidate.constrain.fragments import shares_j
 from elucidate.errors import InputError
 from elucidate.model import Formula, H1Signal, Problem
 
@@ -170,11 +171,6 @@ def attachment_class(signal: H1Signal) -> str:
 
 
 _XH_KINDS = ("OH", "NH", "NH2", "SH")
-
-
-def _same_j(a: H1Signal, b: H1Signal) -> bool:
-    """Do two signals report a coupling within 0.6 Hz of each other (common practice)?"""
-    return any(abs(x - y) <= 0.6 for x in a.couplings for y in b.couplings)
 
 
 def neighbour_counts(
@@ -523,7 +519,7 @@ def _build(problem: Problem, formula: Formula, hs: list[int], values: dict, cost
         # (CH-OH of a dry CDCl3 solution: d, J = 3-5 Hz, on both signals)
         xh_partner = sum(
             v for (j, k), v in values.items()
-            if v and isinstance(j, int) and j != i and k in _XH_KINDS and _same_j(s, problem.h1[j])
+            if v and isinstance(j, int) and j != i and k in _XH_KINDS and shares_j(s, problem.h1[j])
             and not any(w for (j2, k2), w in values.items() if j2 == j and k2 not in _XH_KINDS)
         )
         nb = (
